@@ -1,0 +1,111 @@
+"""Readable text reports: the tables ``panelflow solve`` and ``panelflow check`` print.
+
+Only formatting lives here; the numbers come from :mod:`panelflow.analysis` and
+:mod:`panelflow.check`.
+"""
+
+from __future__ import annotations
+
+import math
+
+from .writers import CAUTION
+
+# Beyond these the attached-flow answer is doubtful for ordinary sections (common practice:
+# typical sections stall between about 10 and 16 degrees from zero lift, and a suction peak far
+# below Cp = -3 usually means leading-edge separation is near).
+_ALPHA_WARN_DEG = 10.0
+_CP_MIN_WARN = -3.0
+
+
+def _num(v, fmt):
+    return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
+
+
+def digits(value: float, error: float) -> str:
+    """``value`` printed with the digits its error estimate supports (at least 3 decimals)."""
+    if not math.isfinite(error) or error <= 0:
+        return f"{value:.5f}"
+    decimals = min(8, max(3, 1 - int(math.floor(math.log10(error)))))
+    return f"{value:.{decimals}f}"
+
+
+def model_notes(analysis) -> list[str]:
+    """Warnings on where the inviscid model is likely to stop being valid."""
+    notes = []
+    for r in analysis:
+        main = r.bodies[0]
+        flags = []
+        if abs(r.alpha_deg) > _ALPHA_WARN_DEG:
+            flags.append(f"|alpha| above {_ALPHA_WARN_DEG:g} deg: real sections may be near stall")
+        if main.cp_min < _CP_MIN_WARN:
+            flags.append(f"suction peak Cp {main.cp_min:.2f}: leading-edge separation likely")
+        if flags:
+            notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
+    return notes
+
+
+def solve_table(analysis) -> str:
+    """Per-angle table of totals, then per-body lines when there is more than one body."""
+    lines = []
+    o = analysis.outlines
+    names = ", ".join(b.name for b in o)
+    ref = analysis.reference_point
+    lines.append(f"bodies: {names}")
+    lines.append(f"panels: {', '.join(str(p.n_panels) for p in analysis.panellings)}   "
+                 f"chord {analysis.chord:.6g}   moments about ({ref[0]:.6g}, {ref[1]:.6g}), "
+                 "nose-up positive")
+    head = (f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} "
+            f"{'cl_p':>9} {'x_cp':>7} {'cp_min':>8} {'at x/c':>7} {'stag x/c':>8}")
+    lines.append(head)
+    for r in analysis:
+        main = r.bodies[0]
+        lines.append(
+            f"{r.alpha_deg:7.2f} {digits(r.cl, r.cl_error_estimate):>10} "
+            f"{_num(r.cl_error_estimate, '8.1e')} {digits(r.cm, r.cm_error_estimate):>10} "
+            f"{_num(r.cm_error_estimate, '8.1e')} {r.cd_pressure:9.1e} {r.cl_pressure:9.5f} "
+            f"{_num(r.x_center_of_pressure, '7.4f')} {main.cp_min:8.4f} "
+            f"{_num(main.x_cp_min, '7.4f')} {_num(main.x_stagnation, '8.4f')}")
+    if len(o) > 1:
+        lines.append("")
+        lines.append(f"{'alpha':>7} {'body':<16} {'cl':>9} {'cm':>9} {'cd_p':>9} {'cp_min':>8} "
+                     f"{'cp_base':>8}")
+        for r in analysis:
+            for b in r.bodies:
+                lines.append(f"{r.alpha_deg:7.2f} {b.name[:16]:<16} {b.cl:9.5f} {b.cm:9.5f} "
+                             f"{b.cd_pressure:9.1e} {b.cp_min:8.4f} {_num(b.cp_base, '8.4f')}")
+    else:
+        cpb = [r.bodies[0].cp_base for r in analysis]
+        if not all(math.isnan(v) for v in cpb):
+            lines.append("base pressure of the blunt trailing edge: "
+                         + ", ".join(f"{v:.4f}" for v in cpb))
+    lines.append("")
+    lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
+    lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
+                 "+/-: discretisation error estimate")
+    for note in model_notes(analysis):
+        lines.append("note: " + note)
+    lines.append("caution: " + CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def check_table(reports, overlap_messages) -> str:
+    """The ``panelflow check`` report."""
+    lines = []
+    for rep in reports:
+        lines.append(f"{rep.name}  ({rep.source or 'built in'})")
+        lines.append(f"  points           {rep.n_points}")
+        te = rep.trailing_edge
+        kind = {"sharp": "sharp", "blunt": "blunt (base)", "none": "none (smooth body)"}[te]
+        lines.append(f"  trailing edge    {kind}; gap {rep.trailing_edge_gap:.6g}; included angle "
+                     f"{rep.trailing_edge_angle_deg:.2f} deg")
+        lines.append(f"  leading edge     ({rep.leading_edge[0]:.6g}, {rep.leading_edge[1]:.6g})")
+        lines.append(f"  trailing edge at ({rep.trailing_edge_point[0]:.6g}, "
+                     f"{rep.trailing_edge_point[1]:.6g})")
+        lines.append(f"  chord            {rep.chord:.6g}; chord-line incidence "
+                     f"{rep.chord_angle_deg:.3f} deg (nose-up positive)")
+        lines.append(f"  thickness        {_num(100 * rep.max_thickness, '.2f')} % of chord; "
+                     f"area {rep.area:.6g}")
+        lines.append("  status           " + ("ok" if rep.ok else "; ".join(rep.problems)))
+    for msg in overlap_messages:
+        lines.append("problem: " + msg)
+    return "\n".join(lines) + "\n"
