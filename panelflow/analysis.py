@@ -95,6 +95,18 @@ class Analysis:
     panellings: tuple
     fine: SurfaceSolution
     coarse: SurfaceSolution | None = field(repr=False)
+    cl_error_estimate: np.ndarray = field(init=False, repr=False)
+    cm_error_estimate: np.ndarray = field(init=False, repr=False)
+
+    def __post_init__(self):
+        if self.coarse is None:
+            cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
+        else:
+            ratio = self.fine.panels.n_panels / self.coarse.panels.n_panels
+            cl_err = _error(self.fine.cl, self.coarse.cl, ratio)
+            cm_err = _error(self.fine.cm, self.coarse.cm, ratio)
+        object.__setattr__(self, "cl_error_estimate", cl_err)
+        object.__setattr__(self, "cm_error_estimate", cm_err)
 
     @property
     def alpha_deg(self) -> np.ndarray:
@@ -124,21 +136,6 @@ class Analysis:
     def cd_pressure(self) -> np.ndarray:
         return self.fine.cd_pressure
 
-    def _ratio(self) -> float:
-        return self.fine.panels.n_panels / self.coarse.panels.n_panels
-
-    @property
-    def cl_error_estimate(self) -> np.ndarray:
-        if self.coarse is None:
-            return np.full_like(self.cl, np.nan)
-        return _error(self.fine.cl, self.coarse.cl, self._ratio())
-
-    @property
-    def cm_error_estimate(self) -> np.ndarray:
-        if self.coarse is None:
-            return np.full_like(self.cm, np.nan)
-        return _error(self.fine.cm, self.coarse.cm, self._ratio())
-
     def __len__(self) -> int:
         return len(self.alpha_deg)
 
@@ -147,6 +144,7 @@ class Analysis:
         p = f.panels
         cl_err, cm_err = self.cl_error_estimate[i], self.cm_error_estimate[i]
         bodies = []
+        chord = self.chord
         for k in range(p.n_bodies):
             nodes = p.body_nodes(k)
             xy = p.nodes[nodes]
@@ -155,13 +153,11 @@ class Analysis:
             bodies.append(BodyAngleResult(
                 name=p.names[k], cl=float(f.body_cl[i, k]), cd_pressure=float(f.body_cd[i, k]),
                 cm=float(f.body_cm[i, k]),
-                cl_circulation=float(-2.0 * f.body_circulation[i, k] / self.chord),
-                cp_min=float(f.cp_min[i, k]),
-                x_cp_min=float(f.chord_line.fraction(complex(*p.nodes[j]))),
+                cl_circulation=float(-2.0 * f.body_circulation[i, k] / chord),
+                cp_min=float(f.cp_min[i, k]), x_cp_min=float(f.x_cp_min[i, k]),
                 xy_cp_min=(float(p.nodes[j, 0]), float(p.nodes[j, 1])),
                 stagnation_xy=(float(zs.real), float(zs.imag)),
-                x_stagnation=float(f.chord_line.fraction(zs)),
-                cp_base=float(f.cp_base[i, k]),
+                x_stagnation=float(f.x_stagnation[i, k]), cp_base=float(f.cp_base[i, k]),
                 x=xy[:, 0].copy(), y=xy[:, 1].copy(), cp=f.cp[i, nodes].copy()))
         return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
                            float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),

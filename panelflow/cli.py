@@ -13,6 +13,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import re
 import sys
 from pathlib import Path
 
@@ -29,10 +30,34 @@ class _Parser(argparse.ArgumentParser):
         self.exit(2, f"{self.prog}: error: {message}\n")
 
 
+_ANGLE_TOKEN = re.compile(r"^[-+]?[\d.]+(e[-+]?\d+)?([:,][-+]?[\d.]+(e[-+]?\d+)?)*$", re.I)
+
+
+def _join_angle_values(argv):
+    """Fold the values after ``--alpha`` into one ``--alpha=A,B,...`` token.
+
+    Without this argparse would read a negative range such as ``-4:8:2`` as an option name.
+    """
+    out, i = [], 0
+    while i < len(argv):
+        tok = argv[i]
+        if tok == "--alpha":
+            j = i + 1
+            while j < len(argv) and _ANGLE_TOKEN.match(argv[j]):
+                j += 1
+            if j > i + 1:
+                out.append("--alpha=" + ",".join(argv[i + 1:j]))
+                i = j
+                continue
+        out.append(tok)
+        i += 1
+    return out
+
+
 def parse_angles(items) -> np.ndarray:
-    """Angles from values and START:STOP:STEP ranges (STOP included)."""
+    """Angles from values and START:STOP:STEP ranges (STOP included), space or comma separated."""
     out = []
-    for item in items:
+    for item in (part for text in items for part in text.split(",") if part):
         parts = item.split(":")
         try:
             nums = [float(p) for p in parts]
@@ -174,7 +199,8 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("outlines", nargs="+", metavar="OUTLINE",
                    help="file or section spec, with optional @name=..@scale=..@pitch=..@move=X,Y")
     s.add_argument("--alpha", nargs="+", metavar="A",
-                   help="angles of attack in degrees: values or START:STOP:STEP")
+                   help="angles of attack in degrees: values or START:STOP:STEP (STOP "
+                   "included), e.g. --alpha -4:10:2 12")
     s.add_argument("--cl", type=float, metavar="TARGET",
                    help="find and solve the angle that gives this lift coefficient")
     s.add_argument("--panels", type=int, default=200, metavar="N",
@@ -205,7 +231,8 @@ def build_parser() -> argparse.ArgumentParser:
 def main(argv=None) -> int:
     """Run the command line; returns the exit status."""
     parser = build_parser()
-    ns = parser.parse_args(argv)
+    argv = sys.argv[1:] if argv is None else list(argv)
+    ns = parser.parse_args(_join_angle_values(argv))
     try:
         if ns.command == "solve" and ns.panels is not None and ns.panels < 8:
             raise InputError(f"--panels {ns.panels}: at least 8 panels needed")

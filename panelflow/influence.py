@@ -71,10 +71,6 @@ def _G(u):
     return _xlogx(u) - u
 
 
-def _H(u):
-    return 0.5 * u * _xlogx(u) - 0.25 * u * u
-
-
 def _local(points: np.ndarray, z1: np.ndarray, tangent: np.ndarray) -> np.ndarray:
     return np.conj(tangent)[None, :] * (points[:, None] - z1[None, :])
 
@@ -108,15 +104,16 @@ def vortex_psi(points, z1, tangent, length):
     y = dy * tx - dx * ty
     L = length[None, :]
     xm = x - L
-    x2, xm2, y2 = x * x, xm * xm, y * y
-    l1, t1 = _half_log(x2 + y2), np.arctan2(y, x)
-    l2, t2 = _half_log(xm2 + y2), np.arctan2(y, xm)
-    # G(u) = u log u - u and H(u) = u^2/2 log u - u^2/4, real and imaginary parts
-    q = x * t1 - xm * t2
-    dg_re = x * l1 - xm * l2 - y * (t1 - t2) - L
-    dg_im = y * (l1 - l2) + q
-    dh_re = 0.5 * ((x2 - y2) * l1 - (xm2 - y2) * l2) - y * q - 0.25 * L * (2.0 * x - L)
-    i1 = (x * dg_re - y * dg_im - dh_re) / L
+    x2, y2 = x * x, y * y
+    l1 = _half_log(x2 + y2)
+    l2 = _half_log(xm * xm + y2)
+    dl = l1 - l2
+    # angle subtended by the panel, arg(zeta) - arg(zeta - L), on the principal branches
+    dt = np.arctan2(-y * L, x * xm + y2)
+    # Real parts of int gamma log(zeta - xi) for gamma = 1 and gamma = xi / L, from the
+    # antiderivatives G(u) = u log u - u and H(u) = u^2/2 log u - u^2/4, after cancellation:
+    dg_re = x * dl + L * l2 - y * dt - L
+    i1 = (0.5 * (x2 - y2) * dl + 0.5 * L * L * l2 - x * y * dt - 0.5 * x * L - 0.25 * L * L) / L
     # psi = Im(-i/(2 pi) * integral) = -Re(integral)/(2 pi)
     return (i1 - dg_re) / _TWO_PI, -i1 / _TWO_PI
 

@@ -79,6 +79,11 @@ def solve_table(analysis) -> str:
             lines.append("base pressure of the blunt trailing edge: "
                          + ", ".join(f"{v:.4f}" for v in cpb))
     lines.append("")
+    if any(o.kind == "blunt" for o in o):
+        lines.append("blunt trailing edge: the base carries the pressure of the flow leaving its "
+                     "corners, above the")
+        lines.append("  (viscous) real base pressure, so there cd_p is no drag estimate and no "
+                     "accuracy check")
     lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
     lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
                  "+/-: discretisation error estimate")

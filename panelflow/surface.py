@@ -25,15 +25,13 @@ class ChordLine:
 
     leading_edge: np.ndarray
     trailing_edge: np.ndarray
+    length: float = field(init=False)
+    direction: complex = field(init=False)
 
-    @property
-    def length(self) -> float:
-        return float(np.hypot(*(self.trailing_edge - self.leading_edge)))
-
-    @property
-    def direction(self) -> complex:
-        d = self.trailing_edge - self.leading_edge
-        return complex(d[0], d[1]) / self.length
+    def __post_init__(self):
+        d = complex(*(np.asarray(self.trailing_edge) - np.asarray(self.leading_edge)))
+        object.__setattr__(self, "length", abs(d))
+        object.__setattr__(self, "direction", d / abs(d))
 
     def fraction(self, z) -> np.ndarray:
         """Chordwise position x/c of points (complex) projected on the chord line."""
@@ -58,8 +56,10 @@ class SurfaceSolution:
     body_cl, body_cd, body_cm : (n_alpha, n_bodies) per body, pressure integration.
     body_circulation : (n_alpha, n_bodies) circulation of each body (counter-clockwise positive).
     cp_base : (n_alpha, n_bodies) base pressure of blunt trailing edges (NaN elsewhere).
-    cp_min : (n_alpha, n_bodies) minimum Cp of each body; ``cp_min_node`` its node index.
-    stagnation : (n_alpha, n_bodies) complex position of the front stagnation point.
+    cp_min : (n_alpha, n_bodies) minimum Cp of each body; ``cp_min_node`` its node index and
+        ``x_cp_min`` its chordwise position x/c.
+    stagnation : (n_alpha, n_bodies) complex position of the front stagnation point;
+        ``x_stagnation`` its chordwise position x/c.
     x_cp : (n_alpha,) centre of pressure as a chord fraction (NaN when the normal force is ~0).
     """
 
@@ -82,6 +82,8 @@ class SurfaceSolution:
     cp_min_node: np.ndarray = field(repr=False)
     stagnation: np.ndarray = field(repr=False)
     x_cp: np.ndarray = field(repr=False)
+    x_cp_min: np.ndarray = field(repr=False)
+    x_stagnation: np.ndarray = field(repr=False)
 
     @property
     def panels(self):
@@ -93,9 +95,53 @@ class SurfaceSolution:
         return self.cl_circulation
 
 
-def _body_loops(panels):
-    """Per body: node slice and the panel mask."""
-    return [(panels.body_nodes(k), panels.body == k) for k in range(panels.n_bodies)]
+def _basis_loads(system: System, zr: complex) -> dict:
+    """Integrals of the four fields whose combinations give Cp at any angle.
+
+    With u0, u1 the unit solutions' surface speeds the fields are 1, u0^2, u0 u1 and u1^2. Per
+    panel, Cp varies quadratically, so Simpson's rule integrates force and moment exactly. The
+    base of a blunt trailing edge carries the pressure of the flow leaving its corners.
+
+    Returns a dict of arrays: ``cp`` (4, n_nodes), ``force`` (4, n_bodies) complex Fx + i Fy of
+    -Cp n ds, ``moment`` (4, n_bodies) counter-clockwise about ``zr``, ``circulation``
+    (2, n_bodies) of the two unit solutions, ``cp_base`` (4, n_base).
+    """
+    p = system.panels
+    m = p.n_nodes
+    u0, u1 = system.unit[:m, 0], system.unit[:m, 1]
+    cp = np.stack([np.ones(m), u0 * u0, u0 * u1, u1 * u1])
+    h0 = 0.5 * (u0[p.start] + u0[p.end])
+    h1 = 0.5 * (u1[p.start] + u1[p.end])
+    cpm = np.stack([np.ones(p.n_panels), h0 * h0, h0 * h1, h1 * h1])
+    cpa, cpb = cp[:, p.start], cp[:, p.end]
+    n_out = -1j * p.tangent  # right of the loop direction: out of the body
+    L = p.length
+    force = -n_out * L * (cpa + 4.0 * cpm + cpb) / 6.0
+    w = L / 6.0 * (cpa * np.conj(p.z1 - zr) + 4.0 * cpm * np.conj(p.mid - zr)
+                   + cpb * np.conj(p.z2 - zr))
+    moment = -(n_out * w).imag
+    circ = L * np.stack([h0, h1])
+
+    nb = p.n_bodies
+    out = {"cp": cp, "force": np.zeros((4, nb), complex), "moment": np.zeros((4, nb)),
+           "circulation": np.zeros((2, nb)), "cp_base": np.zeros((4, len(p.base_body)))}
+    for k in range(nb):
+        on = p.body == k
+        out["force"][:, k] = force[:, on].sum(axis=1)
+        out["moment"][:, k] = moment[:, on].sum(axis=1)
+        out["circulation"][:, k] = circ[:, on].sum(axis=1)
+    for j, k in enumerate(p.base_body):
+        first, last = int(p.node_start[k]), int(p.node_stop[k]) - 1
+        v0 = 0.5 * (u0[last] - u0[first])  # trailing-edge speed of each unit solution
+        v1 = 0.5 * (u1[last] - u1[first])
+        cpb_k = np.array([1.0, v0 * v0, v0 * v1, v1 * v1])
+        out["cp_base"][:, j] = cpb_k
+        z_lo, z_up = complex(*p.nodes[last]), complex(*p.nodes[first])
+        # -Cp n h with the outward normal n = -i (z_up - z_lo) / h
+        base_force = 1j * cpb_k * (z_up - z_lo)
+        out["force"][:, k] += base_force
+        out["moment"][:, k] += (np.conj(0.5 * (z_up + z_lo) - zr) * base_force).imag
+    return out
 
 
 def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> SurfaceSolution:
@@ -118,54 +164,34 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
     """
     p = system.panels
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
-    g = system.gamma(alpha)  # (na, m)
-    cp = 1.0 - g * g
+    na, nb = len(alpha), p.n_bodies
     c = chord_line.length
     zr = complex(reference_point[0], reference_point[1])
     zn = p.nodes[:, 0] + 1j * p.nodes[:, 1]
-
-    # --- pressure integration, panel by panel (Simpson: exact for quadratic Cp times linear r)
-    ga, gb = g[:, p.start], g[:, p.end]
-    cpa, cpb = cp[:, p.start], cp[:, p.end]
-    cpm = 1.0 - (0.5 * (ga + gb)) ** 2
-    n_out = -1j * p.tangent  # right of the loop direction: out of the body
-    L = p.length
-    force = -n_out * L * (cpa + 4.0 * cpm + cpb) / 6.0  # complex Fx + i Fy, (na, np)
-    w = L / 6.0 * (cpa * np.conj(p.z1 - zr) + 4.0 * cpm * np.conj(p.mid - zr)
-                   + cpb * np.conj(p.z2 - zr))
-    moment = -(n_out * w).imag  # counter-clockwise moment of -Cp n ds about the reference
-    circ = L * 0.5 * (ga + gb)
-
-    nb = p.n_bodies
-    na = len(alpha)
-    body_force = np.zeros((na, nb), complex)
-    body_moment = np.zeros((na, nb))
-    body_circ = np.zeros((na, nb))
+    # Cp = 1 - (cos a u0 + sin a u1)^2 is a combination of four fixed fields, so every integral
+    # of Cp is computed once for those fields and combined per angle at almost no cost.
+    basis = _basis_loads(system, zr)
+    ca, sa = np.cos(np.radians(alpha)), np.sin(np.radians(alpha))
+    weights = np.stack([np.ones(na), -ca * ca, -2.0 * ca * sa, -sa * sa], axis=1)  # (na, 4)
+    g = system.gamma(alpha)  # (na, m)
+    cp = weights @ basis["cp"]
+    body_force = weights @ basis["force"]
+    body_moment = weights @ basis["moment"]
+    body_circ = np.stack([ca, sa], axis=1) @ basis["circulation"]
     cp_base = np.full((na, nb), np.nan)
+    if len(p.base_body):
+        cp_base[:, p.base_body] = weights @ basis["cp_base"]
+
     cp_min = np.zeros((na, nb))
     cp_min_node = np.zeros((na, nb), int)
     stagnation = np.zeros((na, nb), complex)
-    base_rows = {int(k): i for i, k in enumerate(p.base_body)}
-    for k, (nodes, on) in enumerate(_body_loops(p)):
-        body_force[:, k] = force[:, on].sum(axis=1)
-        body_moment[:, k] = moment[:, on].sum(axis=1)
-        body_circ[:, k] = circ[:, on].sum(axis=1)
-        gk = g[:, nodes]
-        if k in base_rows:
-            # dead-water base at the pressure of the flow leaving the two corners
-            v_te = 0.5 * (gk[:, -1] - gk[:, 0])
-            cpb_k = 1.0 - v_te**2
-            cp_base[:, k] = cpb_k
-            z_lo, z_up = zn[nodes][-1], zn[nodes][0]
-            h = abs(z_up - z_lo)
-            nb_out = -1j * (z_up - z_lo) / h
-            body_force[:, k] += -cpb_k * nb_out * h
-            arm = 0.5 * (z_up + z_lo) - zr
-            body_moment[:, k] += (np.conj(arm) * (-cpb_k * nb_out * h)).imag
-        i_min = np.argmin(cp[:, nodes], axis=1)
-        cp_min[:, k] = cp[np.arange(na), nodes.start + i_min]
-        cp_min_node[:, k] = nodes.start + i_min
-        stagnation[:, k] = _stagnation(gk, zn[nodes], p.kinds[k] == SMOOTH)
+    rows = np.arange(na)
+    for k in range(nb):
+        nodes = p.body_nodes(k)
+        i_min = nodes.start + np.argmin(cp[:, nodes], axis=1)
+        cp_min[:, k] = cp[rows, i_min]
+        cp_min_node[:, k] = i_min
+        stagnation[:, k] = _stagnation(g[:, nodes], zn[nodes], p.kinds[k] == SMOOTH)
 
     rot = np.exp(-1j * np.radians(alpha))[:, None]
     body_cl = (rot * body_force).imag / c
@@ -181,11 +207,13 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
     e = chord_line.direction
     normal = (np.conj(e) * total_force).imag  # force component normal to the chord line
     with np.errstate(divide="ignore", invalid="ignore"):
-        s = np.where(np.abs(normal) > 1e-9 * c, total_moment / normal, np.nan)
+        # undefined without a normal force (below 1e-6 in coefficient terms)
+        s = np.where(np.abs(normal) > 1e-6 * c, total_moment / normal, np.nan)
     x_cp = chord_line.fraction(zr + s * e)
     return SurfaceSolution(system, chord_line, np.asarray(reference_point, float), alpha, g, cp,
                            cl_p, cd_p, cm, cl_g, body_cl, body_cd, body_cm, body_circ, cp_base,
-                           cp_min, cp_min_node, stagnation, x_cp)
+                           cp_min, cp_min_node, stagnation, x_cp,
+                           chord_line.fraction(zn[cp_min_node]), chord_line.fraction(stagnation))
 
 
 def _stagnation(gk: np.ndarray, zk: np.ndarray, closed: bool) -> np.ndarray:

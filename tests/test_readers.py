@@ -426,7 +426,7 @@ def test_write_unwritable_folder(tmp_path, monkeypatch):
     def refuse(*args, **kwargs):
         raise PermissionError(13, "Permission denied")
 
-    monkeypatch.setattr("panelflow.readers.tempfile.mkstemp", refuse)
+    monkeypatch.setattr("panelflow.writers.tempfile.mkstemp", refuse)
     with pytest.raises(OutputError, match="cannot write.*Permission denied"):
         write_outline_table(naca4("0012"), tmp_path / "x.dat")
     assert list(tmp_path.iterdir()) == []
@@ -436,7 +436,7 @@ def test_write_no_hard_links_falls_back(tmp_path, monkeypatch):
     def no_link(src, dst):
         raise OSError(1, "Operation not permitted")
 
-    monkeypatch.setattr("panelflow.readers.os.link", no_link)
+    monkeypatch.setattr("panelflow.writers.os.link", no_link)
     path = write_outline_table(naca4("0012"), tmp_path / "y.dat")
     assert [p.name for p in tmp_path.iterdir()] == ["y.dat"]
     assert path.read_text().startswith("naca0012\n")

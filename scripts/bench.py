@@ -1,0 +1,107 @@
+"""Speed benchmark: ratios measured side by side in one run (no absolute targets, no timed tests).
+
+(a) build + factorise + one solve at 200, 400 and 800 panels against a bare scipy LU
+    factorisation and solve of a random system of the same size        goal <= 4 at 800
+(b) a 101-angle sweep against one angle, full analysis with error estimate  goal <= 1.3
+(c) ``panelflow solve`` wall time against ``python -c "import numpy, scipy.linalg"``   goal <= 2
+
+Each timing is the best of several repeats, so other load on the machine inflates it least.
+Run: ``python scripts/bench.py`` (about half a minute).
+"""
+
+from __future__ import annotations
+
+import subprocess
+import sys
+import time
+
+import numpy as np
+import scipy.linalg
+
+import panelflow as pf
+from panelflow.analysis import build, default_reference
+from panelflow.sections import naca4
+from panelflow.surface import evaluate
+
+GOALS = {"a": 4.0, "b": 1.3, "c": 2.0}
+
+
+def best_of(func, repeats: int = 7) -> float:
+    """Smallest wall time of ``repeats`` calls of ``func`` (seconds)."""
+    func()  # warm up: imports, caches, thread pools
+    times = []
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        func()
+        times.append(time.perf_counter() - t0)
+    return min(times)
+
+
+def bench_system(sizes=(200, 400, 800)):
+    """Rows (panels, ours s, bare LU s, ratio) for benchmark (a)."""
+    foil = [naca4("2412", closed_te=True)]
+    chord, quarter = default_reference(foil)
+    rng = np.random.default_rng(0)
+    rows = []
+    for n in sizes:
+        def ours():
+            _, system = build(foil, n)
+            evaluate(system, [4.0], chord, quarter)
+
+        a = rng.random((n + 2, n + 2)) + (n + 2) * np.eye(n + 2)
+        b = rng.random(n + 2)
+
+        def bare():
+            scipy.linalg.lu_solve(scipy.linalg.lu_factor(a), b)
+
+        t_ours, t_bare = best_of(ours), best_of(bare)
+        rows.append((n, t_ours, t_bare, t_ours / t_bare))
+    return rows
+
+
+def bench_sweep(n_panels: int = 200):
+    """(one angle s, 101 angles s, ratio) for benchmark (b)."""
+    foil = [naca4("2412", closed_te=True)]
+    angles = np.linspace(-10.0, 10.0, 101)
+    t1 = best_of(lambda: pf.analyse(foil, [4.0], n_panels=n_panels))
+    t101 = best_of(lambda: [r for r in pf.analyse(foil, angles, n_panels=n_panels)])
+    return t1, t101, t101 / t1
+
+
+def _wall(cmd, repeats: int = 5) -> float:
+    subprocess.run(cmd, check=True, capture_output=True)
+    times = []
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        subprocess.run(cmd, check=True, capture_output=True)
+        times.append(time.perf_counter() - t0)
+    return min(times)
+
+
+def bench_cli():
+    """(bare import s, panelflow solve s, ratio) for benchmark (c)."""
+    t_bare = _wall([sys.executable, "-c", "import numpy, scipy.linalg"])
+    t_cli = _wall([sys.executable, "-m", "panelflow", "solve", "naca2412", "--alpha", "4"])
+    return t_bare, t_cli, t_cli / t_bare
+
+
+def main() -> int:
+    print("(a) build + factorise + one solve, against a bare LU solve of the same size")
+    rows = bench_system()
+    for n, ours, bare, ratio in rows:
+        print(f"    {n:4d} panels: {1e3 * ours:7.2f} ms vs {1e3 * bare:6.2f} ms   ratio {ratio:5.2f}")
+    ra = rows[-1][3]
+    t1, t101, rb = bench_sweep()
+    print(f"(b) 101 angles {1e3 * t101:.1f} ms vs one angle {1e3 * t1:.1f} ms   ratio {rb:.2f}")
+    t_bare, t_cli, rc = bench_cli()
+    print(f"(c) panelflow solve {1e3 * t_cli:.0f} ms vs import numpy, scipy.linalg "
+          f"{1e3 * t_bare:.0f} ms   ratio {rc:.2f}")
+    print()
+    for key, ratio in (("a", ra), ("b", rb), ("c", rc)):
+        verdict = "met" if ratio <= GOALS[key] else "NOT met"
+        print(f"goal ({key}) <= {GOALS[key]:g}: {ratio:.2f} {verdict}")
+    return 0
+
+
+if __name__ == "__main__":
+    sys.exit(main())
