@@ -5,9 +5,11 @@ This is the library's main entry point. It composes the one-way chain
     outlines -> check -> panelling -> panels -> factorised system -> surface solution
 
 twice, at ``n`` and about ``n/2`` panels, and estimates the discretisation error of Cl and Cm
-from the difference (Richardson extrapolation with a safety factor, as in Roache's grid
-convergence index): ``error = F * |f_n - f_n/2| / (r^p - 1)`` with ``r`` the panel-count ratio,
-``p = 2`` the order of the method (measured in tests/test_convergence.py) and ``F = 1.25``.
+from the difference (Richardson extrapolation with a safety factor, Roache's grid convergence
+index): ``error = F * |f_n - f_n/2| / (r^p - 1)`` with ``r`` the panel-count ratio, ``p = 2`` the
+order of the method (measured in tests/test_convergence.py) and ``F = 3``, Roache's factor for a
+two-grid study (P. J. Roache, Verification and Validation in Computational Science and
+Engineering, 1998), floored at round-off level.
 """
 
 from __future__ import annotations
@@ -21,11 +23,12 @@ from .errors import InputError
 from .panelling import panel_outline
 from .panels import Panels
 from .solver import System, factorise
-from .surface import ChordLine, SurfaceSolution, evaluate
+from .surface import ChordLine, Coefficients, SurfaceSolution, coefficients, evaluate
 
 DEFAULT_PANELS = 200
 ORDER = 2.0
-SAFETY_FACTOR = 1.25
+SAFETY_FACTOR = 3.0
+ROUND_OFF = 1e-10
 
 
 @dataclass(frozen=True)
@@ -74,7 +77,7 @@ class BodyAngleResult:
 
 
 def _error(fine, coarse, ratio):
-    return SAFETY_FACTOR * np.abs(fine - coarse) / (ratio**ORDER - 1.0)
+    return np.maximum(SAFETY_FACTOR * np.abs(fine - coarse) / (ratio**ORDER - 1.0), ROUND_OFF)
 
 
 @dataclass(frozen=True)
@@ -87,14 +90,14 @@ class Analysis:
     panellings : tuple of Panelling
     fine : SurfaceSolution
         Results at the requested panel count (these are the reported numbers).
-    coarse : SurfaceSolution or None
-        Results at about half the panels (for the error estimate); None when switched off.
+    coarse : Coefficients or None
+        Coefficients at about half the panels (for the error estimate); None when switched off.
     """
 
     outlines: tuple
     panellings: tuple
     fine: SurfaceSolution
-    coarse: SurfaceSolution | None = field(repr=False)
+    coarse: Coefficients | None = field(repr=False)
     cl_error_estimate: np.ndarray = field(init=False, repr=False)
     cm_error_estimate: np.ndarray = field(init=False, repr=False)
 
@@ -102,7 +105,7 @@ class Analysis:
         if self.coarse is None:
             cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
         else:
-            ratio = self.fine.panels.n_panels / self.coarse.panels.n_panels
+            ratio = self.fine.panels.n_panels / self.coarse.n_panels
             cl_err = _error(self.fine.cl, self.coarse.cl, ratio)
             cm_err = _error(self.fine.cm, self.coarse.cm, ratio)
         object.__setattr__(self, "cl_error_estimate", cl_err)
@@ -158,7 +161,7 @@ class Analysis:
                 xy_cp_min=(float(p.nodes[j, 0]), float(p.nodes[j, 1])),
                 stagnation_xy=(float(zs.real), float(zs.imag)),
                 x_stagnation=float(f.x_stagnation[i, k]), cp_base=float(f.cp_base[i, k]),
-                x=xy[:, 0].copy(), y=xy[:, 1].copy(), cp=f.cp[i, nodes].copy()))
+                x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes]))
         return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
                            float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),
                            float(cl_err), float(cm_err), float(f.x_cp[i]), tuple(bodies))
@@ -223,7 +226,8 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
     panellings, system = build(outlines, n_panels)
     fine = evaluate(system, alpha, chord, ref)
-    coarse = evaluate(_coarse_system(panellings), alpha, chord, ref) if error_estimate else None
+    coarse = (coefficients(_coarse_system(panellings), alpha, chord, ref) if error_estimate
+              else None)
     return Analysis(outlines, panellings, fine, coarse)
 
 

@@ -9,9 +9,12 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+import re
+
 import numpy as np
 import shapely
 from shapely.geometry import LinearRing, Polygon
+from shapely.validation import explain_validity
 
 from .errors import GeometryError
 from .outline import MIN_POINTS, Outline
@@ -82,9 +85,11 @@ def _problems(outline: Outline) -> list[str]:
     if len(outline.polygon) < MIN_POINTS - 1:
         problems.append(f"only {len(outline.polygon)} distinct points; at least {MIN_POINTS} needed")
     if not ring.is_simple:
-        where = shapely.get_coordinates(shapely.intersection(ring, ring).difference(ring))
+        # explain_validity names the first crossing as "Self-intersection[x y]"
+        why = explain_validity(Polygon(outline.polygon))
+        where = re.search(r"\[([-+\d.eE]+) ([-+\d.eE]+)\]", why)
         problems.append("the outline crosses itself" + (
-            f" near ({where[0, 0]:.6g}, {where[0, 1]:.6g})" if len(where) else ""))
+            f" near ({float(where[1]):.6g}, {float(where[2]):.6g})" if where else ""))
     area = abs(outline.area)
     if area <= 1e-12 * outline.chord**2:
         problems.append("the outline encloses no area")
@@ -110,7 +115,9 @@ def overlaps(outlines) -> list[str]:
     for i in range(len(polys)):
         for j in range(i + 1, len(polys)):
             if polys[i].is_valid and polys[j].is_valid and polys[i].intersects(polys[j]):
-                out.append(f"bodies {outlines[i].name!r} and {outlines[j].name!r} overlap or touch")
+                a, b = outlines[i], outlines[j]
+                out.append(f"bodies {a.name!r} ({a.source or 'built in'}) and {b.name!r} "
+                           f"({b.source or 'built in'}) overlap or touch")
     return out
 
 

@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from . import __version__
-from .errors import InputError, PanelflowError
+from .errors import GeometryError, InputError, PanelflowError
 
 
 class _Parser(argparse.ArgumentParser):
@@ -33,20 +33,25 @@ class _Parser(argparse.ArgumentParser):
 _ANGLE_TOKEN = re.compile(r"^[-+]?[\d.]+(e[-+]?\d+)?([:,][-+]?[\d.]+(e[-+]?\d+)?)*$", re.I)
 
 
-def _join_angle_values(argv):
-    """Fold the values after ``--alpha`` into one ``--alpha=A,B,...`` token.
+_NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False}  # option: takes several
 
-    Without this argparse would read a negative range such as ``-4:8:2`` as an option name.
+
+def _join_numeric_values(argv):
+    """Fold the values after numeric options into one ``--option=A,B,...`` token.
+
+    Without this argparse would read a negative value such as ``-4:8:2`` or ``-0.2,0`` as an
+    option name.
     """
     out, i = [], 0
     while i < len(argv):
         tok = argv[i]
-        if tok == "--alpha":
+        if tok in _NUMERIC_OPTIONS:
             j = i + 1
-            while j < len(argv) and _ANGLE_TOKEN.match(argv[j]):
+            limit = len(argv) if _NUMERIC_OPTIONS[tok] else min(len(argv), i + 2)
+            while j < limit and _ANGLE_TOKEN.match(argv[j]):
                 j += 1
             if j > i + 1:
-                out.append("--alpha=" + ",".join(argv[i + 1:j]))
+                out.append(tok + "=" + ",".join(argv[i + 1:j]))
                 i = j
                 continue
         out.append(tok)
@@ -81,15 +86,22 @@ def parse_angles(items) -> np.ndarray:
     return angles
 
 
-def parse_point(text: str, option: str) -> tuple[float, float]:
+def parse_point(text: str, option: str, sep: str = " ") -> tuple[float, float]:
     try:
         x, y = (float(v) for v in text.split(","))
     except ValueError:
-        raise InputError(f"{option} {text}: give two numbers as X,Y") from None
+        raise InputError(f"{option}{sep}{text}: give two numbers as X,Y") from None
     return x, y
 
 
 def _transform(outline, key: str, value: str, arg: str):
+    try:
+        return _apply(outline, key, value, arg)
+    except GeometryError as exc:
+        raise InputError(f"{arg}: {key}={value}: {str(exc).split(': ', 1)[-1]}") from None
+
+
+def _apply(outline, key: str, value: str, arg: str):
     try:
         if key == "name":
             return outline.renamed(value)
@@ -98,11 +110,20 @@ def _transform(outline, key: str, value: str, arg: str):
         if key == "pitch":
             return outline.rotated(float(value), about=outline.leading_edge)
         if key == "move":
-            dx, dy = parse_point(value, f"{arg}: move=")
+            dx, dy = parse_point(value, f"{arg}: move=", sep="")
             return outline.translated(dx, dy)
     except ValueError:
         raise InputError(f"{arg}: {key}={value} is not a number") from None
     raise InputError(f"{arg}: unknown transform {key!r}; use name=, scale=, pitch= or move=")
+
+
+def _split_transforms(arg: str):
+    """Source and transform steps of an OUTLINE argument (a path may itself contain '@')."""
+    parts = arg.split("@")
+    for k in range(len(parts), 0, -1):
+        if Path("@".join(parts[:k])).exists():
+            return "@".join(parts[:k]), parts[k:]
+    return parts[0], parts[1:]
 
 
 def load_bodies(args) -> list:
@@ -111,7 +132,7 @@ def load_bodies(args) -> list:
 
     bodies = []
     for arg in args:
-        source, *steps = [arg] if Path(arg).exists() else arg.split("@")
+        source, steps = _split_transforms(arg)
         outlines = load_outlines(source)
         for step in steps:
             key, sep, value = step.partition("=")
@@ -131,7 +152,7 @@ def load_bodies(args) -> list:
 def _cmd_solve(ns) -> int:
     from .analysis import alpha_for_cl, analyse
     from .report import solve_table
-    from .writers import analysis_json, write_result
+    from .writers import analysis_json, check_outputs, write_result
 
     bodies = load_bodies(ns.outlines)
     n_panels = None if ns.keep_points else ns.panels
@@ -144,6 +165,7 @@ def _cmd_solve(ns) -> int:
     else:
         raise InputError("give the angles of attack with --alpha (or a target lift with --cl)")
     ref = parse_point(ns.ref, "--ref") if ns.ref else None
+    check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
     result = analyse(bodies, alphas, n_panels=n_panels, reference_point=ref)
     for path in ns.output or []:
         write_result(result, path, overwrite=ns.force)
@@ -192,13 +214,16 @@ def build_parser() -> argparse.ArgumentParser:
     p = _Parser(prog="panelflow", description="2D inviscid panel analysis of foil and fairing "
                 "sections: surface pressure, lift and pitching moment with error estimates.")
     p.add_argument("--version", action="version", version=f"panelflow {__version__}")
+    common = argparse.ArgumentParser(add_help=False)
+    common.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                        help="show the full traceback on errors")
     p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
     sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
 
-    s = sub.add_parser("solve", help="surface pressure, lift and moment at given angles")
+    s = sub.add_parser("solve", parents=[common], help="surface pressure, lift and moment at given angles")
     s.add_argument("outlines", nargs="+", metavar="OUTLINE",
                    help="file or section spec, with optional @name=..@scale=..@pitch=..@move=X,Y")
-    s.add_argument("--alpha", nargs="+", metavar="A",
+    s.add_argument("--alpha", nargs="+", action="extend", metavar="A",
                    help="angles of attack in degrees: values or START:STOP:STEP (STOP "
                    "included), e.g. --alpha -4:10:2 12")
     s.add_argument("--cl", type=float, metavar="TARGET",
@@ -214,12 +239,12 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--force", action="store_true", help="replace existing output files")
     s.set_defaults(func=_cmd_solve)
 
-    c = sub.add_parser("check", help="geometry report of outlines (exit 1 if any is unusable)")
+    c = sub.add_parser("check", parents=[common], help="geometry report of outlines (exit 1 if any is unusable)")
     c.add_argument("outlines", nargs="+", metavar="OUTLINE")
     c.add_argument("--json", action="store_true", help="print machine-readable JSON")
     c.set_defaults(func=_cmd_check)
 
-    w = sub.add_parser("section", help="write a built-in section as a coordinate table")
+    w = sub.add_parser("section", parents=[common], help="write a built-in section as a coordinate table")
     w.add_argument("spec", metavar="SPEC", help="naca2412, naca23012, ellipse:2,1, ...")
     w.add_argument("-o", "--output", required=True, metavar="FILE")
     w.add_argument("--points", type=int, metavar="N", help="number of points")
@@ -232,7 +257,7 @@ def main(argv=None) -> int:
     """Run the command line; returns the exit status."""
     parser = build_parser()
     argv = sys.argv[1:] if argv is None else list(argv)
-    ns = parser.parse_args(_join_angle_values(argv))
+    ns = parser.parse_args(_join_numeric_values(argv))
     try:
         if ns.command == "solve" and ns.panels is not None and ns.panels < 8:
             raise InputError(f"--panels {ns.panels}: at least 8 panels needed")

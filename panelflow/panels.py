@@ -55,6 +55,8 @@ class Panels:
     mid: np.ndarray = field(init=False, repr=False)
 
     def __post_init__(self):
+        for arr in (self.nodes, self.start, self.end, self.body, self.node_start, self.node_stop):
+            arr.setflags(write=False)
         zn = self.nodes[:, 0] + 1j * self.nodes[:, 1]
         z1, z2 = zn[self.start], zn[self.end]
         length = np.abs(z2 - z1)

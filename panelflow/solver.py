@@ -47,7 +47,8 @@ class System:
     base_factor : ndarray, shape (n_base, n_nodes)
         Base source strength of each blunt body per unit nodal vorticity.
     condition : float
-        Reciprocal condition number estimate of the matrix (1-norm), for diagnostics.
+        Smallest over largest LU pivot magnitude (replaced by the 1-norm reciprocal condition
+        estimate when that ratio is below 1e-10), for diagnostics.
     """
 
     panels: Panels
@@ -118,10 +119,9 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     m, k_bodies = panels.n_nodes, panels.n_bodies
     n = m + k_bodies
     # Collocation: every node of a smooth body; for a body with a trailing edge the nodes between
-    # the two trailing-edge points, the mean of the two trailing-edge points, and the mean of the
-    # midpoints of the two trailing-edge panels (the two trailing-edge nodes coincide on a sharp
-    # edge, so this last condition replaces the duplicated one). Nodes rather than midpoints:
-    # midpoint collocation leaves an odd-even (saw-tooth) vorticity mode undetermined.
+    # the two trailing-edge points and the mean of those two (they coincide on a sharp edge); the
+    # Kutta and closure conditions complete the rows. Nodes rather than panel midpoints: midpoint
+    # collocation leaves an odd-even (saw-tooth) vorticity mode undetermined.
     zn = panels.nodes[:, 0] + 1j * panels.nodes[:, 1]
     pts, pairs, owner = [], [], []
     for k in range(k_bodies):
@@ -134,12 +134,14 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         owner.append(np.full(last - first - 1, k))
         pairs.append((k, zn[first], zn[last]))
     n_single = sum(len(p) for p in pts)
+    n_pair = len(pairs)
     if pairs:
         pts.append(np.array([p[1] for p in pairs]))
         pts.append(np.array([p[2] for p in pairs]))
         owner.append(np.array([p[0] for p in pairs]))
     pts = np.concatenate(pts)
     owner = np.concatenate(owner)
+    n_psi = n_single + n_pair  # rows of streamline conditions; the rest follow them
 
     def node_psi(block):
         # per-panel coefficients summed onto the nodes; start (and end) indices are unique
@@ -150,28 +152,24 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
         out[:, panels.end] += b
         return out
 
-    psi_pts = influence.blockwise(node_psi, pts, m)
+    # The point rows are written straight into the matrix (len(pts) <= n rows); the second
+    # point of each pair is averaged into the first, and its row then reused.
+    matrix = np.zeros((n, n))
+    influence.blockwise(node_psi, pts, m, out=matrix)
     base_factor = _base_factor(panels)
     if len(base_factor):
         bz1, bz2 = panels.base_z1, panels.base_z2
         bl = np.abs(bz2 - bz1)
-        psi_pts += influence.source_psi(pts, bz1, (bz2 - bz1) / bl, bl) @ base_factor
-    free = -pts.imag, pts.real  # -psi of unit streams along x (psi = y) and along y (psi = -x)
-    n_pair = len(pairs)
-    # the paired conditions are the mean of two point conditions
-    psi = psi_pts[:n_single + n_pair]
-    rhs_psi = np.stack(free, axis=1)[:n_single + n_pair]
-    if n_pair:
-        psi[n_single:] = 0.5 * (psi_pts[n_single:n_single + n_pair] + psi_pts[n_single + n_pair:])
-        rhs_psi[n_single:] = 0.5 * (rhs_psi[n_single:] + np.stack(free, axis=1)[n_single + n_pair:])
-    n_psi = n_single + n_pair
-
-    matrix = np.zeros((n, n))
+        matrix[:len(pts), :m] += influence.source_psi(pts, bz1, (bz2 - bz1) / bl, bl) @ base_factor
+    free = np.stack([-pts.imag, pts.real], axis=1)  # -psi of unit streams along x and y
     rhs = np.zeros((n, 2))
-    # psi rows are grouped per body; rows for the extra conditions go after all psi rows
-    matrix[:n_psi, :m] = psi
+    rhs[:n_psi] = free[:n_psi]
+    if n_pair:
+        second = slice(n_psi, n_psi + n_pair)
+        matrix[n_single:n_psi] = 0.5 * (matrix[n_single:n_psi] + matrix[second])
+        rhs[n_single:n_psi] = 0.5 * (free[n_single:n_psi] + free[second])
+        matrix[second] = 0.0
     matrix[np.arange(n_psi), m + owner] = -1.0
-    rhs[:n_psi] = rhs_psi
     row = n_psi
     scale = float(np.mean(panels.length))
     for k in range(k_bodies):
@@ -209,10 +207,18 @@ def factorise(panels: Panels) -> System:
         lu = scipy.linalg.lu_factor(matrix, overwrite_a=True, check_finite=True)
     except (ValueError, np.linalg.LinAlgError) as exc:
         raise SolveError(f"panel system cannot be factorised: {exc}") from None
-    rcond = float(scipy.linalg.lapack.dgecon(lu[0], anorm, norm="1")[0])
+    # Cheap screen on the pivots; the condition estimate (a few percent of the factorisation
+    # time) is computed only when the pivots look suspicious.
+    pivots = np.abs(np.diag(lu[0]))
+    ratio = float(pivots.min() / pivots.max()) if pivots.max() > 0 else 0.0
+    rcond = ratio
+    if ratio < 1e-10:
+        rcond = float(scipy.linalg.lapack.dgecon(lu[0], anorm, norm="1")[0])
     if not np.isfinite(rcond) or rcond < 1e-14:
         raise SolveError(
             f"panel system is singular (reciprocal condition {rcond:.1e}): check for bodies that "
             "touch, duplicated points or panels far shorter than their neighbours")
     unit = scipy.linalg.lu_solve(lu, rhs)
+    if not np.all(np.isfinite(unit)):
+        raise SolveError("panel system gave non-finite strengths: check the geometry")
     return System(panels, unit, base_factor, rcond)

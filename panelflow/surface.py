@@ -85,6 +85,12 @@ class SurfaceSolution:
     x_cp_min: np.ndarray = field(repr=False)
     x_stagnation: np.ndarray = field(repr=False)
 
+    def __post_init__(self):
+        # results hand out views of these arrays (per angle, per body): keep them read-only
+        for value in vars(self).values():
+            if isinstance(value, np.ndarray):
+                value.setflags(write=False)
+
     @property
     def panels(self):
         return self.system.panels
@@ -93,6 +99,56 @@ class SurfaceSolution:
     def cl(self) -> np.ndarray:
         """Best lift estimate: the circulation lift (see DEVELOPERS.md, accuracy)."""
         return self.cl_circulation
+
+
+def _integrals(system: System, alpha: np.ndarray, zr: complex):
+    """Angle weights of the four Cp fields and the per-body integrals at each angle.
+
+    Cp = 1 - (cos a u0 + sin a u1)^2 is a combination of four fixed fields, so every integral of
+    Cp is computed once for those fields and combined per angle at almost no cost.
+    """
+    p = system.panels
+    na = len(alpha)
+    basis = _basis_loads(system, zr)
+    ca, sa = np.cos(np.radians(alpha)), np.sin(np.radians(alpha))
+    weights = np.stack([np.ones(na), -ca * ca, -2.0 * ca * sa, -sa * sa], axis=1)  # (na, 4)
+    body_force = weights @ basis["force"]
+    body_moment = weights @ basis["moment"]
+    body_circ = np.stack([ca, sa], axis=1) @ basis["circulation"]
+    cp_base = np.full((na, p.n_bodies), np.nan)
+    if len(p.base_body):
+        cp_base[:, p.base_body] = weights @ basis["cp_base"]
+    return weights, basis, body_force, body_moment, body_circ, cp_base
+
+
+@dataclass(frozen=True)
+class Coefficients:
+    """Total coefficients only (no surface data), as used for the coarse error-estimate solve.
+
+    Attributes
+    ----------
+    n_panels : int
+    alpha_deg, cl, cl_pressure, cd_pressure, cm : ndarray, shape (n_alpha,)
+        ``cl`` is the circulation lift; the others as in :class:`SurfaceSolution`.
+    """
+
+    n_panels: int
+    alpha_deg: np.ndarray
+    cl: np.ndarray
+    cl_pressure: np.ndarray
+    cd_pressure: np.ndarray
+    cm: np.ndarray
+
+
+def coefficients(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> Coefficients:
+    """Total lift, pressure drag and moment coefficients at the given angles (see ``evaluate``)."""
+    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
+    zr = complex(reference_point[0], reference_point[1])
+    _, _, force, moment, circ, _ = _integrals(system, alpha, zr)
+    c = chord_line.length
+    total = (np.exp(-1j * np.radians(alpha)) * force.sum(axis=1)) / c
+    return Coefficients(system.panels.n_panels, alpha, -2.0 * circ.sum(axis=1) / c, total.imag,
+                        total.real, -moment.sum(axis=1) / c**2)
 
 
 def _basis_loads(system: System, zr: complex) -> dict:
@@ -168,19 +224,9 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
     c = chord_line.length
     zr = complex(reference_point[0], reference_point[1])
     zn = p.nodes[:, 0] + 1j * p.nodes[:, 1]
-    # Cp = 1 - (cos a u0 + sin a u1)^2 is a combination of four fixed fields, so every integral
-    # of Cp is computed once for those fields and combined per angle at almost no cost.
-    basis = _basis_loads(system, zr)
-    ca, sa = np.cos(np.radians(alpha)), np.sin(np.radians(alpha))
-    weights = np.stack([np.ones(na), -ca * ca, -2.0 * ca * sa, -sa * sa], axis=1)  # (na, 4)
-    g = system.gamma(alpha)  # (na, m)
+    weights, basis, body_force, body_moment, body_circ, cp_base = _integrals(system, alpha, zr)
     cp = weights @ basis["cp"]
-    body_force = weights @ basis["force"]
-    body_moment = weights @ basis["moment"]
-    body_circ = np.stack([ca, sa], axis=1) @ basis["circulation"]
-    cp_base = np.full((na, nb), np.nan)
-    if len(p.base_body):
-        cp_base[:, p.base_body] = weights @ basis["cp_base"]
+    g = system.gamma(alpha)  # (na, m)
 
     cp_min = np.zeros((na, nb))
     cp_min_node = np.zeros((na, nb), int)

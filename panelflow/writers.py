@@ -156,10 +156,31 @@ def write_polar_csv(analysis, path, overwrite=False) -> Path:
     return atomic_write_text(path, buf.getvalue(), overwrite)
 
 
+def check_outputs(paths, overwrite=False) -> None:
+    """Raise :class:`OutputError` unless every path can be written: known format, folder
+    present, named once, and not an existing file (unless ``overwrite``).
+
+    Called before any work so that a run that cannot finish writes nothing.
+    """
+    seen = set()
+    for path in paths:
+        p = Path(path)
+        ext = p.suffix.lower()
+        if ext not in WRITERS:
+            raise OutputError(f"{p}: unknown output format {ext or '(no extension)'}; "
+                              f"use one of {', '.join(sorted(WRITERS))}")
+        key = os.path.abspath(p)
+        if key in seen:
+            raise OutputError(f"{p}: named twice as an output")
+        seen.add(key)
+        folder = p.parent if str(p.parent) else Path(".")
+        if not folder.is_dir():
+            raise OutputError(f"{p}: folder {folder} does not exist")
+        if p.exists() and not overwrite:
+            raise OutputError(f"{p}: exists; not overwritten (use --force to replace it)")
+
+
 def write_result(analysis, path, overwrite=False) -> Path:
     """Write ``analysis`` in the format given by the extension of ``path``."""
-    ext = Path(path).suffix.lower()
-    if ext not in WRITERS:
-        raise OutputError(f"{path}: unknown output format {ext or '(no extension)'}; "
-                          f"use one of {', '.join(sorted(WRITERS))}")
-    return WRITERS[ext](analysis, path, overwrite)
+    check_outputs([path], overwrite)
+    return WRITERS[Path(path).suffix.lower()](analysis, path, overwrite)

@@ -13,12 +13,12 @@ from dataclasses import dataclass
 
 import numpy as np
 import pytest
+from exact import KarmanTrefftz
 
 import panelflow as pf
-from exact import KarmanTrefftz
 from panelflow.outline import Outline
 
-# Angles of attack for the mapped sections, degrees from the x-axis (the brief's -4 to 10).
+# Angles of attack for the mapped sections, degrees from the x-axis (-4 to 10 deg).
 MAPPED_ALPHAS_DEG = np.arange(-4.0, 10.5, 2.0)
 
 # Exact surface points per input outline: the solver re-panels on a cubic spline through them,
@@ -87,7 +87,7 @@ MAPPED_CASES = (
 )
 
 
-@functools.lru_cache(maxsize=None)
+@functools.cache
 def _mapped_analysis(name: str, n_panels: int) -> pf.Analysis:
     case = _CASES_BY_NAME[name]
     return pf.analyse([case.outline], MAPPED_ALPHAS_DEG, n_panels=n_panels,

@@ -251,7 +251,9 @@ def test_transforms_on_a_path_containing_at_sign(tmp_path, capsys):
     assert code == 0, err
     rep = json.loads(out)["outlines"][0]
     assert rep["name"] == "moved"
-    assert rep["leading_edge"][1] == pytest.approx(5.0, abs=1e-6)  # file's LE at y = 0 (6 dp)
+    le = load_outlines(target)[0].leading_edge
+    # a translation moves the leading edge by exactly the offset: round-off only
+    assert rep["leading_edge"] == pytest.approx([le[0], le[1] + 5.0], abs=1e-12)
 
 
 # ---------------------------------------------------------------------------------- --cl

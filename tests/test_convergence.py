@@ -13,9 +13,9 @@ the polar does not.
 
 import numpy as np
 import pytest
+from exact import circle_cp
 
 import panelflow as pf
-from exact import circle_cp
 from panelflow.sections import circle
 
 PANEL_COUNTS = np.array([100, 200, 400])

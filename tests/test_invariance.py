@@ -164,7 +164,7 @@ SYMMETRY_LINE = np.linspace(-3.0, 4.0, 141) + 0j  # ahead of, between and behind
 
 def test_velocity_evaluation_is_sound(mirror_pair):
     # Controls for the symmetry-line test below, so that it cannot pass vacuously.
-    upper, pair, alone = mirror_pair
+    _, pair, alone = mirror_pair
     # (1) The formulation leaves the fluid inside each body at rest (panelflow/solver.py);
     # measured |w| <= 2e-4 at interior points, a discretisation-level residue.
     inside = np.array([0.1 + 0.30j, 0.3 + 0.33j, 0.5 + 0.32j, 0.8 + 0.31j])
@@ -180,7 +180,7 @@ def test_mirror_pair_has_no_flow_through_symmetry_line(mirror_pair):
     # The bounds here are discretisation-level because panelflow's panelling is currently not
     # exactly mirror-symmetric (see test_mirror_images_are_exact below): measured max |v|
     # 9.6e-8, |Cl_1 + Cl_2| 1.4e-7 (circulation) and 5.5e-7 (pressure), |Cm_1 + Cm_2| 6.4e-5.
-    upper, pair, alone = mirror_pair
+    _, pair, _ = mirror_pair
     assert np.max(np.abs(velocity(pair, 0, SYMMETRY_LINE).imag)) < 1e-6
     b = pair[0].bodies
     assert abs(b[0].cl_circulation) > 0.1  # the pair does lift (measured +-0.209)
@@ -189,11 +189,6 @@ def test_mirror_pair_has_no_flow_through_symmetry_line(mirror_pair):
     assert abs(b[0].cm + b[1].cm) < 2e-4
 
 
-@pytest.mark.xfail(strict=True, reason=(
-    "panelling.respline smooths the curvature density with an even-width (24-sample) moving "
-    "average in np.convolve(mode='same'), which shifts it half a sample along the loop, so a "
-    "body and its mirror image get nodes that are not mirror images (3.5e-4 chord at 200 "
-    "panels). With an odd-width kernel this test passes at round-off (measured 1e-12)."))
 def test_mirror_images_are_exact():
     # Mirror symmetry of the discrete problem: the mirror image of a panelling is the
     # panelling of the mirror image, so mirrored bodies and a symmetric section at +-alpha give
