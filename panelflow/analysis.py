@@ -76,8 +76,16 @@ class BodyAngleResult:
     cp: np.ndarray = field(repr=False)
 
 
-def _error(fine, coarse, ratio):
-    return np.maximum(SAFETY_FACTOR * np.abs(fine - coarse) / (ratio**ORDER - 1.0), ROUND_OFF)
+def _error(weights, fine_units, coarse_units, ratio):
+    """Richardson estimate bounded component by component on the angle basis.
+
+    A coefficient is a fixed combination of a few angle-independent components (see
+    :func:`~panelflow.surface.unit_coefficients`); summing the absolute changes of the
+    components keeps the estimate from collapsing at the angle where the changes cancel.
+    """
+    diff = np.abs(np.asarray(fine_units) - np.asarray(coarse_units))
+    est = SAFETY_FACTOR * (np.abs(weights) @ diff) / (ratio**ORDER - 1.0)
+    return np.maximum(est, ROUND_OFF)
 
 
 @dataclass(frozen=True)
@@ -105,9 +113,13 @@ class Analysis:
         if self.coarse is None:
             cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
         else:
-            ratio = self.fine.panels.n_panels / self.coarse.n_panels
-            cl_err = _error(self.fine.cl, self.coarse.cl, ratio)
-            cm_err = _error(self.fine.cm, self.coarse.cm, ratio)
+            f, c = self.fine, self.coarse
+            ratio = f.panels.n_panels / c.n_panels
+            a = np.radians(f.alpha_deg)
+            ca, sa = np.cos(a), np.sin(a)
+            cl_err = _error(np.stack([ca, sa], axis=1), f.unit_cl, c.unit_cl, ratio)
+            cm_w = np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1)
+            cm_err = _error(cm_w, f.unit_cm, c.unit_cm, ratio)
         object.__setattr__(self, "cl_error_estimate", cl_err)
         object.__setattr__(self, "cm_error_estimate", cm_err)
 

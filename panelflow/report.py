@@ -21,12 +21,12 @@ def _num(v, fmt):
     return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
 
 
-def digits(value: float, error: float) -> str:
-    """``value`` printed with the digits its error estimate supports (at least 3 decimals)."""
-    if not math.isfinite(error) or error <= 0:
-        return f"{value:.5f}"
-    decimals = min(8, max(3, 1 - int(math.floor(math.log10(error)))))
-    return f"{value:.{decimals}f}"
+def decimals(errors) -> int:
+    """Decimals that reach the digit the largest error estimate affects (3 to 8)."""
+    finite = [e for e in errors if math.isfinite(e) and e > 0]
+    if not finite:
+        return 5
+    return min(8, max(3, -int(math.floor(math.log10(max(finite))))))
 
 
 def model_notes(analysis) -> list[str]:
@@ -57,11 +57,14 @@ def solve_table(analysis) -> str:
     head = (f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} "
             f"{'cl_p':>9} {'x_cp':>7} {'cp_min':>8} {'at x/c':>7} {'stag x/c':>8}")
     lines.append(head)
+    # one number of decimals per column, down to the digit the largest error estimate affects
+    dl = decimals(analysis.cl_error_estimate)
+    dm = decimals(analysis.cm_error_estimate)
     for r in analysis:
         main = r.bodies[0]
         lines.append(
-            f"{r.alpha_deg:7.2f} {digits(r.cl, r.cl_error_estimate):>10} "
-            f"{_num(r.cl_error_estimate, '8.1e')} {digits(r.cm, r.cm_error_estimate):>10} "
+            f"{r.alpha_deg:7.2f} {r.cl:10.{dl}f} "
+            f"{_num(r.cl_error_estimate, '8.1e')} {r.cm:10.{dm}f} "
             f"{_num(r.cm_error_estimate, '8.1e')} {r.cd_pressure:9.1e} {r.cl_pressure:9.5f} "
             f"{_num(r.x_center_of_pressure, '7.4f')} {main.cp_min:8.4f} "
             f"{_num(main.x_cp_min, '7.4f')} {_num(main.x_stagnation, '8.4f')}")

@@ -60,6 +60,8 @@ class SurfaceSolution:
         ``x_cp_min`` its chordwise position x/c.
     stagnation : (n_alpha, n_bodies) complex position of the front stagnation point;
         ``x_stagnation`` its chordwise position x/c.
+    unit_cl, unit_cm : (2,), (4,) components of cl and cm on the angle basis (see
+        :func:`unit_coefficients`).
     x_cp : (n_alpha,) centre of pressure as a chord fraction (NaN when the normal force is ~0).
     """
 
@@ -84,6 +86,8 @@ class SurfaceSolution:
     x_cp: np.ndarray = field(repr=False)
     x_cp_min: np.ndarray = field(repr=False)
     x_stagnation: np.ndarray = field(repr=False)
+    unit_cl: np.ndarray = field(repr=False)
+    unit_cm: np.ndarray = field(repr=False)
 
     def __post_init__(self):
         # results hand out views of these arrays (per angle, per body): keep them read-only
@@ -138,17 +142,28 @@ class Coefficients:
     cl_pressure: np.ndarray
     cd_pressure: np.ndarray
     cm: np.ndarray
+    unit_cl: np.ndarray
+    unit_cm: np.ndarray
+
+
+def unit_coefficients(basis: dict, c: float):
+    """Components of cl and cm on the angle basis.
+
+    ``cl(alpha) = [cos a, sin a] . unit_cl`` (circulation lift) and
+    ``cm(alpha) = [1, -cos^2 a, -2 cos a sin a, -sin^2 a] . unit_cm``.
+    """
+    return (-2.0 * basis["circulation"].sum(axis=1) / c, -basis["moment"].sum(axis=1) / c**2)
 
 
 def coefficients(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> Coefficients:
     """Total lift, pressure drag and moment coefficients at the given angles (see ``evaluate``)."""
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
     zr = complex(reference_point[0], reference_point[1])
-    _, _, force, moment, circ, _ = _integrals(system, alpha, zr)
+    _, basis, force, moment, circ, _ = _integrals(system, alpha, zr)
     c = chord_line.length
     total = (np.exp(-1j * np.radians(alpha)) * force.sum(axis=1)) / c
     return Coefficients(system.panels.n_panels, alpha, -2.0 * circ.sum(axis=1) / c, total.imag,
-                        total.real, -moment.sum(axis=1) / c**2)
+                        total.real, -moment.sum(axis=1) / c**2, *unit_coefficients(basis, c))
 
 
 def _basis_loads(system: System, zr: complex) -> dict:
@@ -259,7 +274,8 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
     return SurfaceSolution(system, chord_line, np.asarray(reference_point, float), alpha, g, cp,
                            cl_p, cd_p, cm, cl_g, body_cl, body_cd, body_cm, body_circ, cp_base,
                            cp_min, cp_min_node, stagnation, x_cp,
-                           chord_line.fraction(zn[cp_min_node]), chord_line.fraction(stagnation))
+                           chord_line.fraction(zn[cp_min_node]), chord_line.fraction(stagnation),
+                           *unit_coefficients(basis, c))
 
 
 def _stagnation(gk: np.ndarray, zk: np.ndarray, closed: bool) -> np.ndarray:
