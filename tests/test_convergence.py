@@ -35,8 +35,8 @@ def test_observed_order_helper_recovers_a_known_order():
 
 def test_cl_order(mapped_case, mapped_analysis):
     # Circulation lift vs exact Kutta-Joukowski lift (Katz & Plotkin ch. 6). Measured orders:
-    # joukowski-cambered 1.93, -symmetric 1.94, -sharp-nose 1.95; kt-5deg 1.95, kt-10deg 1.97,
-    # kt-15deg 1.98, kt-15deg-sharp-nose 2.00.
+    # joukowski-cambered 1.88, -symmetric 1.86, -sharp-nose 1.88; kt-5deg 1.90, kt-10deg 1.92,
+    # kt-15deg 1.94, kt-15deg-sharp-nose 1.92.
     errors = []
     for n in PANEL_COUNTS:
         r = mapped_analysis(mapped_case, n)
@@ -46,8 +46,9 @@ def test_cl_order(mapped_case, mapped_analysis):
 
 def test_cm_order(mapped_case, mapped_analysis):
     # Quarter-chord Cm vs Blasius (Milne-Thomson; exact.KarmanTrefftz.cm). Measured orders:
-    # joukowski-cambered 2.01, -symmetric 2.33, -sharp-nose 2.06; kt-5deg 2.13, kt-10deg 2.23,
-    # kt-15deg 2.04, kt-15deg-sharp-nose 3.06 (its 200-panel error happens to be small).
+    # joukowski-cambered 1.86, -symmetric 1.86, -sharp-nose 1.58; kt-5deg 1.88, kt-10deg 1.85,
+    # kt-15deg 1.91, kt-15deg-sharp-nose 1.61 (the sharp noses converge more slowly from 100 to
+    # 200 panels: errors 1.8e-4, 7.0e-5, 2.0e-5 for joukowski-sharp-nose).
     errors = []
     for n in PANEL_COUNTS:
         r = mapped_analysis(mapped_case, n)
