@@ -33,7 +33,11 @@ class _Parser(argparse.ArgumentParser):
 _ANGLE_TOKEN = re.compile(r"^[-+]?[\d.]+(e[-+]?\d+)?([:,][-+]?[\d.]+(e[-+]?\d+)?)*$", re.I)
 
 
-_NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False}  # option: takes several
+# option -> takes several values; values may be negative, so they are folded into the option
+_NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": False,
+                    "--speed": False, "--density": False, "--chord": False, "--span": False,
+                    "--static-pressure": False, "--window": False, "--mach": False,
+                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False}
 
 
 def _join_numeric_values(argv):
@@ -166,16 +170,134 @@ def _cmd_solve(ns) -> int:
         raise InputError("give the angles of attack with --alpha (or a target lift with --cl)")
     ref = parse_point(ns.ref, "--ref") if ns.ref else None
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
+    if ns.plot:
+        from .plots import check_figure_path
+
+        check_figure_path(ns.plot, ns.force)
     result = analyse(bodies, alphas, n_panels=n_panels, reference_point=ref)
     for path in ns.output or []:
         write_result(result, path, overwrite=ns.force)
+    if ns.plot:
+        from .plots import surface_cp_figure
+
+        surface_cp_figure(result, ns.plot, float(result.alpha_deg[0]), overwrite=ns.force)
     if ns.json:
         sys.stdout.write(analysis_json(result))
     else:
         if ns.cl is not None:
             sys.stdout.write(f"angle of attack for cl = {ns.cl:g}: {alphas[0]:.4f} deg\n")
         sys.stdout.write(solve_table(result))
-    for path in ns.output or []:
+    for path in [*(ns.output or []), *([ns.plot] if ns.plot else [])]:
+        print(f"wrote {path}", file=sys.stderr)
+    return 0
+
+
+def _parse_numbers(text: str, count: int, option: str, kind=float) -> tuple:
+    try:
+        values = tuple(kind(v) for v in text.split(","))
+    except ValueError:
+        values = ()
+    if len(values) != count:
+        raise InputError(f"{option} {text}: give {count} numbers separated by commas")
+    return values
+
+
+def _cmd_field(ns) -> int:
+    from .analysis import analyse
+    from .report import field_summary
+    from .field import default_window, flow_field, grid_points
+    from .field_io import check_field_outputs, read_points_csv, write_field
+
+    bodies = load_bodies(ns.outlines)
+    alphas = parse_angles(ns.alpha)
+    if len(alphas) != 1:
+        raise InputError(f"--alpha: a field is for one angle, got {len(alphas)}")
+    outputs = ns.output or []
+    if not outputs and not ns.plot:
+        raise InputError("give a field file with -o FILE and/or a figure with --plot FIGURE")
+    if ns.points and ns.plot:
+        raise InputError("--plot draws a grid field: use --window/--resolution, not --points")
+    check_field_outputs(outputs, ns.force)
+    if ns.plot:
+        from .plots import check_figure_path
+
+        check_figure_path(ns.plot, ns.force)
+    if ns.points:
+        points, shape, window = read_points_csv(ns.points), None, None
+    else:
+        window = (_parse_numbers(ns.window, 4, "--window") if ns.window
+                  else default_window(bodies))
+        points, shape = grid_points(window, _parse_numbers(ns.resolution, 2, "--resolution", int))
+    result = analyse(bodies, alphas, n_panels=None if ns.keep_points else ns.panels,
+                     error_estimate=False)
+    system = result.fine.system
+    flow = flow_field(system, points, alphas, shape)
+    for path in outputs:
+        write_field(flow, path, outlines=bodies, overwrite=ns.force)
+    if ns.plot:
+        from .plots import field_figure
+        from .streamlines import streamlines
+
+        lines = streamlines(system, alphas[0], window, n=ns.streamlines) if ns.streamlines else ()
+        field_figure(flow, bodies, ns.plot, streamlines=lines, overwrite=ns.force)
+    sys.stdout.write(field_summary(flow, result))
+    for path in [*outputs, *([ns.plot] if ns.plot else [])]:
+        print(f"wrote {path}", file=sys.stderr)
+    return 0
+
+
+def _cmd_compare(ns) -> int:
+    from .analysis import analyse
+    from .report import compare_table
+
+    cases = [load_bodies([arg]) for arg in ns.outlines]
+    alphas = parse_angles(ns.alpha)
+    if ns.plot:
+        from .plots import check_figure_path
+
+        check_figure_path(ns.plot, ns.force)
+    n_panels = None if ns.keep_points else ns.panels
+    analyses = [analyse(bodies, alphas, n_panels=n_panels) for bodies in cases]
+    labels = [", ".join(o.name for o in bodies) for bodies in cases]
+    sys.stdout.write(compare_table(analyses, labels))
+    if ns.plot:
+        from .plots import compare_cp_figure
+
+        compare_cp_figure(analyses, labels, alphas[0], ns.plot, overwrite=ns.force)
+        print(f"wrote {ns.plot}", file=sys.stderr)
+    return 0
+
+
+def _cmd_loads(ns) -> int:
+    from .analysis import analyse
+    from .fluids import Conditions, resolve_fluid
+    from .loads import equilibrium_text, read_nodes, section_loads
+    from .loads_io import check_load_outputs, write_loads
+
+    bodies = load_bodies(ns.outlines)
+    alphas = parse_angles(ns.alpha)
+    if len(alphas) != 1:
+        raise InputError(f"--alpha: loads are for one angle, got {len(alphas)}")
+    if not ns.output:
+        raise InputError("give the load file(s) with -o FILE (.json, .csv, .vtu, .inp)")
+    fluid = resolve_fluid(ns.fluid, ns.density)
+    if ns.absolute and ns.static_pressure is not None:
+        raise InputError("give either --absolute or --static-pressure, not both")
+    scale = {"unit": ns.unit, "chord": ns.chord, "span": ns.span}
+    conditions = (Conditions.absolute(fluid, ns.speed, **scale) if ns.absolute else
+                  Conditions(fluid, ns.speed, static_pressure=ns.static_pressure, **scale))
+    about = [parse_point(t, "--about") for t in ns.about or []]
+    nodes = read_nodes(ns.nodes) if ns.nodes else None
+    check_load_outputs(ns.output, overwrite=ns.force)
+    ref = parse_point(ns.ref, "--ref") if ns.ref else None
+    result = analyse(bodies, alphas, n_panels=None if ns.keep_points else ns.panels,
+                     reference_point=ref)
+    loads = section_loads(result, conditions, about=about, nodes=nodes,
+                          node_tolerance=ns.node_tolerance)
+    written = [w for path in ns.output for w in write_loads(loads, path, overwrite=ns.force)]
+    sys.stdout.write(equilibrium_text(loads))
+    sys.stdout.write("".join(f"caution: {line}\n" for line in loads.cautions))
+    for path in written:
         print(f"wrote {path}", file=sys.stderr)
     return 0
 
@@ -210,6 +332,16 @@ def _cmd_section(ns) -> int:
     return 0
 
 
+def _geometry_parent() -> argparse.ArgumentParser:
+    g = argparse.ArgumentParser(add_help=False)
+    g.add_argument("--panels", type=int, default=200, metavar="N",
+                   help="panels per body on a spline through the points (default 200)")
+    g.add_argument("--keep-points", action="store_true",
+                   help="use the given points as panel ends instead of re-panelling")
+    g.add_argument("--force", action="store_true", help="replace existing output files")
+    return g
+
+
 def build_parser() -> argparse.ArgumentParser:
     p = _Parser(prog="panelflow", description="2D inviscid panel analysis of foil and fairing "
                 "sections: surface pressure, lift and pitching moment with error estimates.")
@@ -218,33 +350,91 @@ def build_parser() -> argparse.ArgumentParser:
     common.add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
                         help="show the full traceback on errors")
     p.add_argument("--debug", action="store_true", help="show the full traceback on errors")
+    geometry = _geometry_parent()
     sub = p.add_subparsers(dest="command", required=True, parser_class=_Parser)
+    outline_help = "file or section spec, with optional @name=..@scale=..@pitch=..@move=X,Y"
+    alpha_help = ("angles of attack in degrees: values or START:STOP:STEP (STOP included), "
+                  "e.g. --alpha -4:10:2 12")
 
-    s = sub.add_parser("solve", parents=[common], help="surface pressure, lift and moment at given angles")
-    s.add_argument("outlines", nargs="+", metavar="OUTLINE",
-                   help="file or section spec, with optional @name=..@scale=..@pitch=..@move=X,Y")
-    s.add_argument("--alpha", nargs="+", action="extend", metavar="A",
-                   help="angles of attack in degrees: values or START:STOP:STEP (STOP "
-                   "included), e.g. --alpha -4:10:2 12")
+    s = sub.add_parser("solve", parents=[common, geometry],
+                       help="surface pressure, lift and moment at given angles")
+    s.add_argument("outlines", nargs="+", metavar="OUTLINE", help=outline_help)
+    s.add_argument("--alpha", nargs="+", action="extend", metavar="A", help=alpha_help)
     s.add_argument("--cl", type=float, metavar="TARGET",
                    help="find and solve the angle that gives this lift coefficient")
-    s.add_argument("--panels", type=int, default=200, metavar="N",
-                   help="panels per body on a spline through the points (default 200)")
-    s.add_argument("--keep-points", action="store_true",
-                   help="use the given points as panel ends instead of re-panelling")
     s.add_argument("--ref", metavar="X,Y", help="moment reference point (default: quarter chord)")
     s.add_argument("--json", action="store_true", help="print machine-readable JSON")
     s.add_argument("-o", "--output", action="append", metavar="FILE",
                    help="also write the results (.json: everything; .csv: one row per angle)")
-    s.add_argument("--force", action="store_true", help="replace existing output files")
+    s.add_argument("--plot", metavar="FIGURE",
+                   help="surface Cp figure (.png, .svg or .pdf) at the first angle")
     s.set_defaults(func=_cmd_solve)
 
-    c = sub.add_parser("check", parents=[common], help="geometry report of outlines (exit 1 if any is unusable)")
+    f = sub.add_parser("field", parents=[common, geometry],
+                       help="velocity and Cp around the bodies, to mesh/CSV files and a figure")
+    f.add_argument("outlines", nargs="+", metavar="OUTLINE", help=outline_help)
+    f.add_argument("--alpha", nargs="+", action="extend", metavar="A", required=True,
+                   help="angle of attack in degrees (one value)")
+    f.add_argument("--window", metavar="X0,X1,Y0,Y1",
+                   help="grid window (default: the bodies with half a chord around them)")
+    f.add_argument("--resolution", metavar="NX,NY", default="201,121",
+                   help="grid points along x and y (default 201,121)")
+    f.add_argument("--points", metavar="FILE.csv", help="evaluate at these x,y points instead")
+    f.add_argument("-o", "--output", action="append", metavar="FILE",
+                   help="field file: .vtu, .xdmf (mesh viewers) or .csv (one row per point)")
+    f.add_argument("--plot", metavar="FIGURE", help="Cp contours and streamlines (.png/.svg/.pdf)")
+    f.add_argument("--streamlines", type=int, default=17, metavar="N",
+                   help="streamlines drawn in the figure (default 17)")
+    f.set_defaults(func=_cmd_field)
+
+    m = sub.add_parser("compare", parents=[common, geometry],
+                       help="several sections (or cases) side by side at one angle")
+    m.add_argument("outlines", nargs="+", metavar="OUTLINE",
+                   help="one case per argument (a file with several bodies is one case)")
+    m.add_argument("--alpha", nargs="+", action="extend", metavar="A", required=True,
+                   help="angle of attack in degrees (the first one is plotted)")
+    m.add_argument("--plot", metavar="FIGURE", help="overlaid surface Cp (.png/.svg/.pdf)")
+    m.set_defaults(func=_cmd_compare)
+
+    ld = sub.add_parser("loads", parents=[common, geometry],
+                        help="dimensional pressure loads for a structural model")
+    ld.add_argument("outlines", nargs="+", metavar="OUTLINE", help=outline_help)
+    ld.add_argument("--alpha", nargs="+", action="extend", metavar="A", required=True,
+                    help="angle of attack in degrees (one value)")
+    fl = ld.add_mutually_exclusive_group(required=True)
+    fl.add_argument("--fluid", metavar="NAME", help="air, fresh-water or sea-water")
+    fl.add_argument("--density", type=float, metavar="RHO", help="fluid density in kg/m^3")
+    ld.add_argument("--speed", type=float, required=True, metavar="V",
+                    help="freestream speed in m/s")
+    sc = ld.add_mutually_exclusive_group()
+    sc.add_argument("--unit", metavar="U", help="length unit of the outline: m, cm, mm, in, ft")
+    sc.add_argument("--chord", type=float, metavar="C", help="scale the main chord to C metres")
+    ld.add_argument("--span", type=float, metavar="S",
+                    help="span in metres for forces in N (default: per metre of span)")
+    ld.add_argument("--about", action="append", metavar="X,Y",
+                    help="extra moment point, e.g. a flap hinge (outline units; repeatable)")
+    ld.add_argument("--ref", metavar="X,Y", help="moment reference point (default: quarter chord)")
+    ld.add_argument("--nodes", metavar="FE.csv",
+                    help="structural nodes (id, x, y in outline units) to carry the loads")
+    ld.add_argument("--node-tolerance", type=float, metavar="D",
+                    help="largest distance of a node from the outline (default 0.1 %% of chord)")
+    pr = ld.add_mutually_exclusive_group()
+    pr.add_argument("--absolute", action="store_true",
+                    help="absolute pressures (the fluid's ambient pressure) instead of gauge")
+    pr.add_argument("--static-pressure", type=float, metavar="P",
+                    help="reference static pressure in Pa for absolute pressures")
+    ld.add_argument("-o", "--output", action="append", metavar="FILE",
+                    help="load file: .json, .csv, .vtu or .inp (+ companion .loads.csv)")
+    ld.set_defaults(func=_cmd_loads)
+
+    c = sub.add_parser("check", parents=[common],
+                       help="geometry report of outlines (exit 1 if any is unusable)")
     c.add_argument("outlines", nargs="+", metavar="OUTLINE")
     c.add_argument("--json", action="store_true", help="print machine-readable JSON")
     c.set_defaults(func=_cmd_check)
 
-    w = sub.add_parser("section", parents=[common], help="write a built-in section as a coordinate table")
+    w = sub.add_parser("section", parents=[common],
+                       help="write a built-in section as a coordinate table")
     w.add_argument("spec", metavar="SPEC", help="naca2412, naca23012, ellipse:2,1, ...")
     w.add_argument("-o", "--output", required=True, metavar="FILE")
     w.add_argument("--points", type=int, metavar="N", help="number of points")
@@ -259,7 +449,7 @@ def main(argv=None) -> int:
     argv = sys.argv[1:] if argv is None else list(argv)
     ns = parser.parse_args(_join_numeric_values(argv))
     try:
-        if ns.command == "solve" and ns.panels is not None and ns.panels < 8:
+        if getattr(ns, "panels", None) is not None and ns.panels < 8:
             raise InputError(f"--panels {ns.panels}: at least 8 panels needed")
         return ns.func(ns)
     except PanelflowError as exc:

@@ -32,14 +32,16 @@ BLOCK_PAIRS = 50_000
 _THREADS = max(1, min(4, os.cpu_count() or 1))
 
 
-def blockwise(kernel, points, n_cols: int, n_out: int = 1, dtype=float, out=None):
-    """Evaluate ``kernel(points_block)`` in row blocks of about ``BLOCK_PAIRS`` entries.
+def blockwise(kernel, points, n_cols: int, n_out: int = 1, dtype=float, out=None,
+              pairs_per_point: int | None = None):
+    """Evaluate ``kernel(points_block)`` in row blocks of about ``BLOCK_PAIRS`` point-panel pairs.
 
     ``kernel`` returns one array (``n_out == 1``) or a tuple of ``n_out`` arrays of shape
     (len(block), n_cols). numpy releases the GIL inside its array loops, so blocks run
     concurrently in threads; each block's temporaries stay small and cache-resident. With
     ``out`` (one array, ``n_out == 1``) the results fill its first rows and columns instead of a
-    new array.
+    new array. ``pairs_per_point`` is the number of panels the kernel pairs each point with
+    (default ``n_cols``), which sets the block size.
     """
     points = np.asarray(points)
     n = len(points)
@@ -48,7 +50,8 @@ def blockwise(kernel, points, n_cols: int, n_out: int = 1, dtype=float, out=None
         out = [target[:n, :n_cols]]
     else:
         out = [np.empty((n, n_cols), dtype) for _ in range(n_out)]
-    rows = max(1, BLOCK_PAIRS // max(n_cols, 1))
+    per_point = n_cols if pairs_per_point is None else pairs_per_point
+    rows = max(1, BLOCK_PAIRS // max(per_point, 1))
     blocks = [slice(i, min(n, i + rows)) for i in range(0, n, rows)]
 
     def job(sl):

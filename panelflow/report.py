@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
+
 from .writers import CAUTION
 
 # Beyond these the attached-flow answer is doubtful for ordinary sections (common practice:
@@ -116,4 +118,36 @@ def check_table(reports, overlap_messages) -> str:
         lines.append("  status           " + ("ok" if rep.ok else "; ".join(rep.problems)))
     for msg in overlap_messages:
         lines.append("problem: " + msg)
+    return "\n".join(lines) + "\n"
+
+
+def compare_table(analyses, labels) -> str:
+    """Cl, Cm, minimum Cp and its position for each case and angle (``panelflow compare``)."""
+    width = max(12, *(len(lb) for lb in labels))
+    lines = [f"{'case':<{width}} {'alpha':>7} {'cl':>9} {'+/-':>8} {'cm':>9} {'+/-':>8} "
+             f"{'cp_min':>8} {'at x/c':>7}"]
+    for label, a in zip(labels, analyses):
+        for r in a:
+            main = min(r.bodies, key=lambda b: b.cp_min)
+            lines.append(f"{label:<{width}} {r.alpha_deg:7.2f} {r.cl:9.5f} "
+                         f"{_num(r.cl_error_estimate, '8.1e')} {r.cm:9.5f} "
+                         f"{_num(r.cm_error_estimate, '8.1e')} {main.cp_min:8.4f} "
+                         f"{_num(main.x_cp_min, '7.4f')}")
+    lines.append("")
+    lines.append("moments about each case's own quarter chord, nose-up positive; cp_min over all "
+                 "bodies of the case")
+    lines.append("caution: " + CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def field_summary(flow, analysis) -> str:
+    """Short account of a computed field (``panelflow field``)."""
+    cp = flow.cp[0]
+    outside = ~flow.inside
+    lines = [f"field at alpha {flow.alpha_deg[0]:g} deg: {len(flow.points)} points"
+             + (f" on a {flow.shape[1]} x {flow.shape[0]} grid" if len(flow.shape) == 2 else "")
+             + f", {int(flow.inside.sum())} inside bodies",
+             f"Cp from {np.nanmin(cp[outside]):.4f} to {np.nanmax(cp[outside]):.4f}; "
+             f"speed up to {np.nanmax(flow.speed[0][outside]):.4f} x freestream",
+             f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f} ({analysis.n_panels} panels)"]
     return "\n".join(lines) + "\n"

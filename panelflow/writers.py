@@ -10,7 +10,7 @@ import io
 import json
 import math
 import os
-import tempfile
+import secrets
 from pathlib import Path
 
 from . import __version__
@@ -31,12 +31,26 @@ def register_writer(ext: str):
     return deco
 
 
-def atomic_write_text(path, text: str, overwrite: bool = False) -> Path:
-    """Write ``text`` to ``path`` through a temporary file in the same folder.
+def _temporary(folder: Path, name: str, suffix: str):
+    """Create a new hidden file beside the target, with the permissions the umask gives."""
+    flags = os.O_WRONLY | os.O_CREAT | os.O_EXCL | getattr(os, "O_BINARY", 0)
+    while True:
+        tmp = folder / f".{name}.{secrets.token_hex(6)}{suffix}"
+        try:
+            return os.open(tmp, flags, 0o666), str(tmp)
+        except FileExistsError:
+            continue
 
-    The temporary file is flushed to disk, then renamed into place (``overwrite``) or hard-linked
-    to the target name, which fails if the target appeared meanwhile, so an existing file is
-    never replaced without being asked and an interrupted run leaves no half-written result.
+
+def atomic_write(path, write, overwrite: bool = False, binary: bool = False,
+                 suffix: str = ".tmp") -> Path:
+    """Write a file through a temporary file in the same folder, then move it into place.
+
+    ``write(fh)`` fills the open temporary file (text or binary). The file is flushed to disk,
+    then renamed onto the target (``overwrite``) or hard-linked to the target name, which fails
+    if the target appeared meanwhile: an existing file is never replaced without being asked, and
+    an interrupted run leaves no half-written result. ``suffix`` is the temporary file's
+    extension (some writers pick the format from it).
 
     Raises
     ------
@@ -52,9 +66,10 @@ def atomic_write_text(path, text: str, overwrite: bool = False) -> Path:
         raise OutputError(exists)
     tmp = None
     try:
-        fd, tmp = tempfile.mkstemp(dir=folder, prefix=f".{p.name}.", suffix=".tmp")
-        with os.fdopen(fd, "w", encoding="utf-8", newline="\n") as fh:
-            fh.write(text)
+        fd, tmp = _temporary(folder, p.name, suffix)
+        mode = {"mode": "wb"} if binary else {"mode": "w", "encoding": "utf-8", "newline": "\n"}
+        with os.fdopen(fd, **mode) as fh:
+            write(fh)
             fh.flush()
             os.fsync(fh.fileno())
         if overwrite:
@@ -74,6 +89,11 @@ def atomic_write_text(path, text: str, overwrite: bool = False) -> Path:
         if tmp is not None and os.path.exists(tmp):
             os.unlink(tmp)
     return p
+
+
+def atomic_write_text(path, text: str, overwrite: bool = False) -> Path:
+    """Write ``text`` to ``path`` atomically (see :func:`atomic_write`)."""
+    return atomic_write(path, lambda fh: fh.write(text), overwrite)
 
 
 def _clean(value):
@@ -156,28 +176,35 @@ def write_polar_csv(analysis, path, overwrite=False) -> Path:
     return atomic_write_text(path, buf.getvalue(), overwrite)
 
 
-def check_outputs(paths, overwrite=False) -> None:
-    """Raise :class:`OutputError` unless every path can be written: known format, folder
-    present, named once, and not an existing file (unless ``overwrite``).
+def check_outputs(paths, overwrite=False, registry=None, what="output", expand=None) -> None:
+    """Raise :class:`OutputError` unless every path can be written: format known to
+    ``registry`` (default the result writers), folder present, each file named once, and none
+    existing (unless ``overwrite``). ``expand(path)`` lists every file one output name writes
+    (a mesh with its companion table), when that is more than the path itself.
 
     Called before any work so that a run that cannot finish writes nothing.
     """
-    seen = set()
+    registry = WRITERS if registry is None else registry
+    seen = {}  # absolute path -> the output name that writes it
     for path in paths:
         p = Path(path)
         ext = p.suffix.lower()
-        if ext not in WRITERS:
-            raise OutputError(f"{p}: unknown output format {ext or '(no extension)'}; "
-                              f"use one of {', '.join(sorted(WRITERS))}")
-        key = os.path.abspath(p)
-        if key in seen:
-            raise OutputError(f"{p}: named twice as an output")
-        seen.add(key)
-        folder = p.parent if str(p.parent) else Path(".")
-        if not folder.is_dir():
-            raise OutputError(f"{p}: folder {folder} does not exist")
-        if p.exists() and not overwrite:
-            raise OutputError(f"{p}: exists; not overwritten (use --force to replace it)")
+        if ext not in registry:
+            raise OutputError(f"{p}: unknown {what} format {ext or '(no extension)'}; "
+                              f"use one of {', '.join(sorted(registry))}")
+        for target in (expand(p) if expand else [p]):
+            key = os.path.abspath(target)
+            if key in seen:
+                owner = p if target != p else seen[key]
+                raise OutputError(f"{target}: named twice as an output"
+                                  + (f" (it is the companion of {owner})" if owner != target
+                                     else ""))
+            seen[key] = p
+            folder = target.parent if str(target.parent) else Path(".")
+            if not folder.is_dir():
+                raise OutputError(f"{target}: folder {folder} does not exist")
+            if target.exists() and not overwrite:
+                raise OutputError(f"{target}: exists; not overwritten (use --force to replace it)")
 
 
 def write_result(analysis, path, overwrite=False) -> Path:

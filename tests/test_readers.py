@@ -426,7 +426,7 @@ def test_write_unwritable_folder(tmp_path, monkeypatch):
     def refuse(*args, **kwargs):
         raise PermissionError(13, "Permission denied")
 
-    monkeypatch.setattr("panelflow.writers.tempfile.mkstemp", refuse)
+    monkeypatch.setattr("panelflow.writers._temporary", refuse)
     with pytest.raises(OutputError, match="cannot write.*Permission denied"):
         write_outline_table(naca4("0012"), tmp_path / "x.dat")
     assert list(tmp_path.iterdir()) == []
