@@ -189,6 +189,16 @@ def default_reference(outlines) -> tuple[ChordLine, np.ndarray]:
     return chord, main.chord_point(0.25)
 
 
+def _reference(outlines, chord_line):
+    if chord_line is None:
+        return default_reference(outlines)
+    le, te = (np.asarray(p, float) for p in chord_line)
+    line = ChordLine(le, te)
+    if not line.length > 0:
+        raise InputError("the reference chord line has zero length")
+    return line, le + 0.25 * (te - le)
+
+
 def build(outlines, n_panels: int | None = DEFAULT_PANELS):
     """Check the outlines, panel them and factorise the system.
 
@@ -207,7 +217,7 @@ def _coarse_system(panellings) -> System:
 
 
 def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
-            error_estimate: bool = True) -> Analysis:
+            error_estimate: bool = True, chord_line=None) -> Analysis:
     """Solve the flow around one or more bodies at any number of angles of attack.
 
     Parameters
@@ -223,6 +233,9 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
         Moment reference point; default the quarter chord of the main body's chord line.
     error_estimate : bool
         Solve again at half the panels to estimate the discretisation error of Cl and Cm.
+    chord_line : (leading_edge, trailing_edge), optional
+        Reference chord line; default the main body's (a deflected flap's section uses the
+        undeflected chord). The default reference point is its quarter chord.
 
     Returns
     -------
@@ -234,7 +247,7 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
     if alpha.ndim != 1 or not np.all(np.isfinite(alpha)):
         raise InputError("angles of attack must be finite numbers")
-    chord, quarter = default_reference(outlines)
+    chord, quarter = _reference(outlines, chord_line)
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
     panellings, system = build(outlines, n_panels)
     fine = evaluate(system, alpha, chord, ref)
@@ -243,7 +256,8 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     return Analysis(outlines, panellings, fine, coarse)
 
 
-def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS) -> float:
+def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,
+                 chord_line=None) -> float:
     """Angle of attack in degrees at which the total lift coefficient equals ``target_cl``.
 
     The circulation lift is exactly ``A cos(alpha) + B sin(alpha)`` (superposition of the two
@@ -257,7 +271,7 @@ def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANE
         peak of the sinusoid).
     """
     outlines = tuple(outlines)
-    chord, quarter = default_reference(outlines)
+    chord, quarter = _reference(outlines, chord_line)
     _, system = build(outlines, n_panels)
     unit = evaluate(system, [0.0, 90.0], chord, quarter).cl
     a, b = float(unit[0]), float(unit[1])

@@ -153,15 +153,34 @@ def load_bodies(args) -> list:
     return unique
 
 
+def _flapped(ns, bodies):
+    """Bodies with the ``--flap`` deflection applied to the first one, and the chord line."""
+    if not getattr(ns, "flap", None):
+        return bodies, None
+    from .flap import plain_flap, slotted_flap
+
+    hinge, angle = _parse_numbers(ns.flap, 2, "--flap")
+    if ns.flap_gap is not None:
+        fs = slotted_flap(bodies[0], hinge, angle, gap=ns.flap_gap, radius=ns.flap_radius)
+    else:
+        fs = plain_flap(bodies[0], hinge, angle, radius=ns.flap_radius)
+    return [*fs.outlines, *bodies[1:]], fs.chord_line
+
+
 def _cmd_solve(ns) -> int:
     from .analysis import alpha_for_cl, analyse
     from .report import solve_table
     from .writers import analysis_json, check_outputs, write_result
 
-    bodies = load_bodies(ns.outlines)
+    bodies, chord_line = _flapped(ns, load_bodies(ns.outlines))
     n_panels = None if ns.keep_points else ns.panels
+    boundary = _boundary(ns)
+    if ns.cl is not None and boundary is not None:
+        raise InputError("--cl cannot be combined with --ground or --free-surface")
+    if ns.depth is not None and not ns.fluid:
+        raise InputError("--depth needs --fluid (fresh-water or sea-water) for the cavitation check")
     if ns.cl is not None:
-        alphas = [alpha_for_cl(bodies, ns.cl, n_panels)]
+        alphas = [alpha_for_cl(bodies, ns.cl, n_panels, chord_line=chord_line)]
         if ns.alpha:
             raise InputError("give either --alpha or --cl, not both")
     elif ns.alpha:
@@ -174,7 +193,10 @@ def _cmd_solve(ns) -> int:
         from .plots import check_figure_path
 
         check_figure_path(ns.plot, ns.force)
-    result = analyse(bodies, alphas, n_panels=n_panels, reference_point=ref)
+    if boundary is not None:
+        return _solve_near_plane(ns, bodies, alphas, n_panels, ref, boundary)
+    result = analyse(bodies, alphas, n_panels=n_panels, reference_point=ref,
+                     chord_line=chord_line)
     for path in ns.output or []:
         write_result(result, path, overwrite=ns.force)
     if ns.plot:
@@ -187,8 +209,51 @@ def _cmd_solve(ns) -> int:
         if ns.cl is not None:
             sys.stdout.write(f"angle of attack for cl = {ns.cl:g}: {alphas[0]:.4f} deg\n")
         sys.stdout.write(solve_table(result))
+        sys.stdout.write(_margins(ns, result))
     for path in [*(ns.output or []), *([ns.plot] if ns.plot else [])]:
         print(f"wrote {path}", file=sys.stderr)
+    return 0
+
+
+def _boundary(ns):
+    from .boundaries import Boundary
+
+    if ns.ground is not None and ns.free_surface is not None:
+        raise InputError("give either --ground or --free-surface, not both")
+    if ns.ground is not None:
+        return Boundary.ground(ns.ground)
+    if ns.free_surface is not None:
+        return Boundary.free_surface(ns.free_surface)
+    return None
+
+
+def _margins(ns, result) -> str:
+    """Compressibility and cavitation sections of the ``solve`` report, when asked for."""
+    from .report import cavitation_table, compressibility_table
+
+    text = ""
+    if ns.mach is not None:
+        from .compressibility import correct
+
+        text += compressibility_table(correct(result, ns.mach, ns.mach_rule))
+    if ns.depth is not None:
+        from .cavitation import assess_in
+
+        text += cavitation_table(assess_in(result, ns.depth, ns.fluid, speed=ns.speed),
+                                 result.alpha_deg, ns.depth, ns.fluid, ns.speed)
+    return text
+
+
+def _solve_near_plane(ns, bodies, alphas, n_panels, ref, boundary) -> int:
+    from .boundaries import analyse_with_boundary
+    from .report import boundary_table
+
+    if ns.output or ns.plot or ns.json or ns.mach is not None or ns.depth is not None:
+        raise InputError("with --ground or --free-surface only the printed table is available "
+                         "(no -o, --plot, --json, --mach or --depth yet)")
+    result = analyse_with_boundary(bodies, alphas, boundary, n_panels=n_panels,
+                                   reference_point=ref)
+    sys.stdout.write(boundary_table(result))
     return 0
 
 
@@ -208,7 +273,7 @@ def _cmd_field(ns) -> int:
     from .field import default_window, flow_field, grid_points
     from .field_io import check_field_outputs, read_points_csv, write_field
 
-    bodies = load_bodies(ns.outlines)
+    bodies, chord_line = _flapped(ns, load_bodies(ns.outlines))
     alphas = parse_angles(ns.alpha)
     if len(alphas) != 1:
         raise InputError(f"--alpha: a field is for one angle, got {len(alphas)}")
@@ -229,7 +294,7 @@ def _cmd_field(ns) -> int:
                   else default_window(bodies))
         points, shape = grid_points(window, _parse_numbers(ns.resolution, 2, "--resolution", int))
     result = analyse(bodies, alphas, n_panels=None if ns.keep_points else ns.panels,
-                     error_estimate=False)
+                     error_estimate=False, chord_line=chord_line)
     system = result.fine.system
     flow = flow_field(system, points, alphas, shape)
     for path in outputs:
@@ -274,7 +339,7 @@ def _cmd_loads(ns) -> int:
     from .loads import equilibrium_text, read_nodes, section_loads
     from .loads_io import check_load_outputs, write_loads
 
-    bodies = load_bodies(ns.outlines)
+    bodies, chord_line = _flapped(ns, load_bodies(ns.outlines))
     alphas = parse_angles(ns.alpha)
     if len(alphas) != 1:
         raise InputError(f"--alpha: loads are for one angle, got {len(alphas)}")
@@ -291,7 +356,7 @@ def _cmd_loads(ns) -> int:
     check_load_outputs(ns.output, overwrite=ns.force)
     ref = parse_point(ns.ref, "--ref") if ns.ref else None
     result = analyse(bodies, alphas, n_panels=None if ns.keep_points else ns.panels,
-                     reference_point=ref)
+                     reference_point=ref, chord_line=chord_line)
     loads = section_loads(result, conditions, about=about, nodes=nodes,
                           node_tolerance=ns.node_tolerance)
     written = [w for path in ns.output for w in write_loads(loads, path, overwrite=ns.force)]
@@ -339,6 +404,13 @@ def _geometry_parent() -> argparse.ArgumentParser:
     g.add_argument("--keep-points", action="store_true",
                    help="use the given points as panel ends instead of re-panelling")
     g.add_argument("--force", action="store_true", help="replace existing output files")
+    g.add_argument("--flap", metavar="XH,ANGLE",
+                   help="deflect the first body's aft part about a hinge at chord fraction XH by "
+                   "ANGLE degrees (trailing edge down positive)")
+    g.add_argument("--flap-gap", type=float, metavar="G",
+                   help="make it a separate flap body with this gap (outline units)")
+    g.add_argument("--flap-radius", type=float, default=0.01, metavar="R",
+                   help="rounding radius at the hinge (outline units, default 0.01)")
     return g
 
 
@@ -368,6 +440,21 @@ def build_parser() -> argparse.ArgumentParser:
                    help="also write the results (.json: everything; .csv: one row per angle)")
     s.add_argument("--plot", metavar="FIGURE",
                    help="surface Cp figure (.png, .svg or .pdf) at the first angle")
+    s.add_argument("--mach", type=float, metavar="M",
+                   help="compressibility-corrected coefficients and the critical Mach number")
+    s.add_argument("--mach-rule", default="karman-tsien",
+                   choices=("karman-tsien", "prandtl-glauert", "laitone"),
+                   help="compressibility correction (default karman-tsien)")
+    s.add_argument("--depth", type=float, metavar="H",
+                   help="running depth in metres for the cavitation check (with --fluid)")
+    s.add_argument("--fluid", metavar="NAME", help="fresh-water or sea-water (for --depth)")
+    s.add_argument("--speed", type=float, metavar="V",
+                   help="speed in m/s for the cavitation number and margin (with --depth)")
+    plane = s.add_mutually_exclusive_group()
+    plane.add_argument("--ground", type=float, metavar="H",
+                       help="plane wall (ground effect) H below the quarter chord (outline units)")
+    plane.add_argument("--free-surface", type=float, metavar="H",
+                       help="free surface H above the quarter chord (high Froude number limit)")
     s.set_defaults(func=_cmd_solve)
 
     f = sub.add_parser("field", parents=[common, geometry],

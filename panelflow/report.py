@@ -151,3 +151,52 @@ def field_summary(flow, analysis) -> str:
              f"speed up to {np.nanmax(flow.speed[0][outside]):.4f} x freestream",
              f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f} ({analysis.n_panels} panels)"]
     return "\n".join(lines) + "\n"
+
+
+def compressibility_table(c) -> str:
+    """Compressibility-corrected coefficients and critical Mach numbers (``solve --mach``)."""
+    lines = ["", f"compressibility: {c.rule} at Mach {c.mach:g}; critical Cp* {c.cp_star:.4f} "
+             "(isentropic, NACA Report 1135)",
+             f"{'alpha':>7} {'cl':>9} {'+/-':>8} {'cm':>9} {'+/-':>8} {'cp_min':>8} "
+             f"{'M_crit':>7}"]
+    cp_min = np.min(np.asarray(c.cp_min).reshape(len(c.alpha_deg), -1), axis=1)
+    for i, a in enumerate(c.alpha_deg):
+        flag = "  sonic: model not valid" if c.supercritical[i] else ""
+        lines.append(f"{a:7.2f} {c.cl[i]:9.5f} {_num(float(c.cl_error_estimate[i]), '8.1e')} "
+                     f"{c.cm[i]:9.5f} {_num(float(c.cm_error_estimate[i]), '8.1e')} "
+                     f"{cp_min[i]:8.4f} {_num(float(c.critical_mach[i]), '7.4f')}{flag}")
+    lines += [f"warning: {w}" for w in c.warnings]
+    return "\n".join(lines) + "\n"
+
+
+def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
+    """Cavitation inception check at a running depth (``solve --depth``)."""
+    lines = ["", f"cavitation at {depth:g} m depth in {fluid}"
+             + (f", {speed:g} m/s: cavitation number {float(np.ravel(v.sigma)[0]):.4f}"
+                if speed else "") + " (inception when -Cp_min >= cavitation number)",
+             f"{'alpha':>7} {'-cp_min':>8} {'V_incep':>9}" + (f" {'margin':>8}" if speed else "")]
+    for i, a in enumerate(alpha_deg):
+        row = f"{a:7.2f} {-v.section_cp_min[i]:8.4f} {v.section_inception_speed[i]:7.2f} m/s"
+        if speed:
+            row += f" {v.margin[i]:8.3f}" + ("  cavitating" if v.cavitating[i] else "")
+        lines.append(row)
+    lines += [f"caution: {c}" for c in v.cautions]
+    return "\n".join(lines) + "\n"
+
+
+def boundary_table(b) -> str:
+    """Coefficients of bodies near a wall or free surface (``solve --ground/--free-surface``)."""
+    kind = b.boundary.kind.replace("_", " ")
+    lines = [f"bodies: {', '.join(b.body_names)} near a {kind} at y = {b.image.plane_y:.6g}; "
+             "freestream along x, each angle pitches the bodies nose-up about "
+             f"({b.pitch_point[0]:.6g}, {b.pitch_point[1]:.6g})",
+             f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} {'cl_p':>9} "
+             f"{'cp_min':>8} {'clearance':>9}"]
+    for i, a in enumerate(b.alpha_deg):
+        lines.append(f"{a:7.2f} {b.cl[i]:10.5f} {_num(float(b.cl_error_estimate[i]), '8.1e')} "
+                     f"{b.cm[i]:10.5f} {_num(float(b.cm_error_estimate[i]), '8.1e')} "
+                     f"{b.cd_pressure[i]:9.1e} {b.cl_pressure[i]:9.5f} "
+                     f"{np.min(b.cp_min[i]):8.4f} {b.clearance[i]:9.4g}")
+    lines += ["", "cl: lift from the generalised circulation (Lagally); cl_p: pressure-integrated"]
+    lines += [f"caution: {c}" for c in (*b.cautions, CAUTION)]
+    return "\n".join(lines) + "\n"
