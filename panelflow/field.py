@@ -25,6 +25,7 @@ import shapely
 
 from . import influence
 from .errors import InputError
+from .outline import BLUNT
 from .solver import System
 
 # Thickness of the near-surface layer, in local panel lengths: beyond it the discrete field is
@@ -182,6 +183,62 @@ def _nearest_surface(system: System, pts: np.ndarray):
     return best_d, best_j, best_t
 
 
+def _neighbours(panels):
+    """For each panel, the panel meeting it at its start node and at its end node (-1: none).
+
+    A smooth body closes its loop; at a sharp trailing edge the two edge panels meet at the
+    coincident trailing-edge nodes; a blunt edge's corners meet the base, which has no sheet.
+    """
+    before = np.full(panels.n_panels, -1)
+    after = np.full(panels.n_panels, -1)
+    for k in range(panels.n_bodies):
+        js = np.flatnonzero(panels.body == k)
+        before[js[1:]] = js[:-1]
+        after[js[:-1]] = js[1:]
+        if panels.kinds[k] != BLUNT:
+            before[js[0]] = js[-1]
+            after[js[-1]] = js[0]
+    return before, after
+
+
+def _surface_layer(system: System, q, d, j, t):
+    """Surface velocity, layer thickness and outward direction for points near the surface.
+
+    The nearest surface point lies on panel ``j`` at fraction ``t``. Where it is a node (the point
+    is in the wedge outside a corner), the three are interpolated by angle between the two panels
+    meeting there, so the field is continuous across the corner's bisector.
+    """
+    p = system.panels
+    g = system.unit[:p.n_nodes]
+    zs = p.z1[j] + t * p.length[j] * p.tangent[j]
+    w_surf = ((1.0 - t)[:, None] * g[p.start[j]] + t[:, None] * g[p.end[j]]) \
+        * np.conj(p.tangent[j])[:, None]  # surface velocity gamma t, as u - i v
+    layer = NEAR * p.length[j]
+    n_out = -1j * p.tangent[j]
+    before, after = _neighbours(p)
+    other = np.where(t == 0.0, before[j], after[j])
+    wedge = ((t == 0.0) | (t == 1.0)) & (d > 0) & (other >= 0)
+    if np.any(wedge):
+        jw, ow, tw = j[wedge], other[wedge], t[wedge]
+        node_w = np.where(tw == 0.0, p.start[jw], p.end[jw])
+        node_o = np.where(tw == 0.0, p.end[ow], p.start[ow])  # same place, maybe another node
+        radial = (q[wedge] - zs[wedge]) / d[wedge]
+        n_j, n_o = -1j * p.tangent[jw], -1j * p.tangent[ow]
+        span = np.angle(n_o / n_j)
+        f = np.clip(np.angle(radial / n_j) / np.where(span != 0, span, 1.0), 0.0, 1.0)[:, None]
+        w_j = g[node_w] * np.conj(p.tangent[jw])[:, None]
+        w_o = g[node_o] * np.conj(p.tangent[ow])[:, None]
+        # turn the surface velocity from one panel's direction to the other's
+        with np.errstate(invalid="ignore", divide="ignore"):
+            turn = np.angle(w_o / w_j)
+        rot = ((1.0 - f) * np.abs(w_j) + f * np.abs(w_o)) * np.exp(1j * (np.angle(w_j) + f * turn))
+        w_surf[wedge] = np.where(np.isfinite(turn) & (np.abs(w_j) > 0), rot,
+                                 (1.0 - f) * w_j + f * w_o)
+        layer[wedge] = NEAR * ((1.0 - f[:, 0]) * p.length[jw] + f[:, 0] * p.length[ow])
+        n_out[wedge] = radial
+    return zs, w_surf, layer, n_out
+
+
 def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
     """Velocity of the two unit solutions (freestream included) and the inside mask.
 
@@ -191,33 +248,22 @@ def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
         ``u - i v`` for a unit freestream along x (column 0) and along y (column 1); NaN inside.
     inside : ndarray of bool, shape (n,)
     """
-    p = system.panels
     pts = np.asarray(points, complex).ravel()
     inside = inside_bodies(system, pts)
     w = np.full((len(pts), 2), np.nan + 0j)
     out = ~inside
     q = pts[out]
     d, j, t = _nearest_surface(system, q)
-    layer = NEAR * p.length[j]
+    zs, w_surf, layer, n_out = _surface_layer(system, q, d, j, t)
     near = d < layer
+    free = np.array([1.0, -1j])  # unit freestreams along x and y: u - i v = 1 and -i
     w_out = np.empty((len(q), 2), complex)
-    far = ~near
-    w_out[far] = induced_velocity(system, q[far])
+    w_out[~near] = induced_velocity(system, q[~near]) + free
     if np.any(near):
-        # surface point, its outward normal and the layer's outer edge
-        jn, tn = j[near], t[near]
-        zs = p.z1[jn] + tn * p.length[jn] * p.tangent[jn]
-        n_out = -1j * p.tangent[jn]
-        edge = zs + layer[near] * n_out
-        w_edge = induced_velocity(system, edge)
-        g = system.unit[:p.n_nodes]
-        gamma_s = (1.0 - tn)[:, None] * g[p.start[jn]] + tn[:, None] * g[p.end[jn]]
-        # surface velocity gamma * t, written as u - i v = gamma * conj(t)
-        w_surf = gamma_s * np.conj(p.tangent[jn])[:, None]
+        # linear in the distance from the surface value to the field at the layer's edge
+        w_edge = induced_velocity(system, zs[near] + layer[near] * n_out[near]) + free
         frac = (d[near] / layer[near])[:, None]
-        free = np.array([1.0, -1j])
-        w_out[near] = w_surf + frac * ((w_edge + free) - w_surf) - free
-    w_out += np.array([1.0, -1j])  # unit freestreams: u - i v = 1 and -i
+        w_out[near] = w_surf[near] + frac * (w_edge - w_surf[near])
     w[out] = w_out
     return w, inside
 

@@ -252,7 +252,7 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
         i_min = nodes.start + np.argmin(cp[:, nodes], axis=1)
         cp_min[:, k] = cp[rows, i_min]
         cp_min_node[:, k] = i_min
-        stagnation[:, k] = _stagnation(g[:, nodes], zn[nodes], p.kinds[k] == SMOOTH)
+        stagnation[:, k] = stagnation_point(g[:, nodes], zn[nodes], p.kinds[k] == SMOOTH)
 
     rot = np.exp(-1j * np.radians(alpha))[:, None]
     body_cl = (rot * body_force).imag / c
@@ -278,7 +278,7 @@ def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) 
                            *unit_coefficients(basis, c))
 
 
-def _stagnation(gk: np.ndarray, zk: np.ndarray, closed: bool) -> np.ndarray:
+def stagnation_point(gk: np.ndarray, zk: np.ndarray, closed: bool) -> np.ndarray:
     """Front stagnation point of one body for each angle.
 
     The loop runs counter-clockwise, so the speed along it is negative on the upper side and
