@@ -18,11 +18,11 @@ from pathlib import Path
 
 import numpy as np
 import pytest
+from conftest import exact_outline
 from exact import KarmanTrefftz, circle_field
 
 import panelflow as pf
 from panelflow import field as fld
-from panelflow.outline import Outline
 from panelflow.sections import circle, naca4
 
 N_PANELS = 200
@@ -31,14 +31,6 @@ CIRCLE_ALPHAS_DEG = np.array([0.0, 10.0, 33.0])
 KT_ALPHAS_DEG = np.array([-4.0, 4.0, 10.0])
 # Cambered Karman-Trefftz section, 10 deg trailing-edge angle (chord ~3.9).
 KT_SECTION = KarmanTrefftz(-0.08 + 0.08j, 10.0)
-
-
-def _kt_outline(section: KarmanTrefftz, n_points: int = 2000) -> Outline:
-    """Outline through exact surface points (as tests/conftest.py builds its mapped sections)."""
-    theta = np.sort(np.r_[section.circle_angles(n_points), section.leading_edge_angle])
-    pts = section.surface(theta)
-    pts[0] = pts[-1] = section.trailing_edge
-    return Outline.from_points(pts, name="kt-section", source="exact.py")
 
 
 @pytest.fixture(scope="module")
@@ -50,7 +42,7 @@ def circle_result():
 
 @pytest.fixture(scope="module")
 def kt_result():
-    return pf.analyse([_kt_outline(KT_SECTION)], KT_ALPHAS_DEG, n_panels=N_PANELS,
+    return pf.analyse([exact_outline(KT_SECTION, 2000)], KT_ALPHAS_DEG, n_panels=N_PANELS,
                       error_estimate=False)
 
 

@@ -24,13 +24,13 @@ panels are written beside each bound.
 import numpy as np
 import pytest
 import shapely
+from conftest import exact_outline
 from exact import KarmanTrefftz, circle_field
 
 import panelflow as pf
 from panelflow import field as fld
 from panelflow import streamlines as sl
 from panelflow.errors import InputError
-from panelflow.outline import Outline
 from panelflow.sections import circle, naca4
 
 N_PANELS = 200
@@ -39,14 +39,6 @@ NACA_WINDOW = (-1.0, 2.0, -0.6, 0.6)
 KT_WINDOW = (-4.5, 5.0, -2.0, 2.0)
 # Cambered Karman-Trefftz section, 15 deg trailing-edge angle (chord ~3.9)
 KT_SECTION = KarmanTrefftz(-0.12 + 0.10j, 15.0)
-
-
-def _kt_outline(section: KarmanTrefftz, n_points: int = 2000) -> Outline:
-    """Outline through exact surface points (as tests/conftest.py builds its mapped sections)."""
-    theta = np.sort(np.r_[section.circle_angles(n_points), section.leading_edge_angle])
-    pts = section.surface(theta)
-    pts[0] = pts[-1] = section.trailing_edge
-    return Outline.from_points(pts, name="kt-section", source="exact.py")
 
 
 @pytest.fixture(scope="module")
@@ -64,7 +56,7 @@ def naca_result():
 
 @pytest.fixture(scope="module")
 def kt_result():
-    return pf.analyse([_kt_outline(KT_SECTION)], [4.0], n_panels=N_PANELS, error_estimate=False)
+    return pf.analyse([exact_outline(KT_SECTION, 2000)], [4.0], n_panels=N_PANELS, error_estimate=False)
 
 
 @pytest.fixture(scope="module")
