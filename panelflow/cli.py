@@ -37,7 +37,9 @@ _ANGLE_TOKEN = re.compile(r"^[-+]?[\d.]+(e[-+]?\d+)?([:,][-+]?[\d.]+(e[-+]?\d+)?
 _NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": False,
                     "--speed": False, "--density": False, "--chord": False, "--span": False,
                     "--static-pressure": False, "--window": False, "--mach": False,
-                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False}
+                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False,
+                    "--resolution": False, "--flap-gap": False, "--flap-radius": False,
+                    "--node-tolerance": False}
 
 
 def _join_numeric_values(argv):
@@ -177,8 +179,7 @@ def _cmd_solve(ns) -> int:
     boundary = _boundary(ns)
     if ns.cl is not None and boundary is not None:
         raise InputError("--cl cannot be combined with --ground or --free-surface")
-    if ns.depth is not None and not ns.fluid:
-        raise InputError("--depth needs --fluid (fresh-water or sea-water) for the cavitation check")
+    _check_margins(ns)
     if ns.cl is not None:
         alphas = [alpha_for_cl(bodies, ns.cl, n_panels, chord_line=chord_line)]
         if ns.alpha:
@@ -225,6 +226,30 @@ def _boundary(ns):
     if ns.free_surface is not None:
         return Boundary.free_surface(ns.free_surface)
     return None
+
+
+def _check_margins(ns) -> None:
+    """Refuse bad --mach / --depth values before any work, so a failing run writes nothing."""
+    if ns.mach is not None:
+        from .compressibility import check_mach
+
+        check_mach(ns.mach)
+    if ns.depth is None:
+        if ns.fluid or ns.speed is not None:
+            raise InputError("--fluid and --speed on solve are for the cavitation check: "
+                             "give --depth too")
+        return
+    if not ns.fluid:
+        raise InputError("--depth needs --fluid (fresh-water or sea-water) for the cavitation check")
+    from .cavitation import cavitation_number
+    from .fluids import get_fluid
+
+    fluid = get_fluid(ns.fluid)
+    if fluid.vapour_pressure is None:
+        raise InputError(f"--fluid {ns.fluid}: no vapour pressure; the cavitation check needs "
+                         "a liquid (fresh-water or sea-water)")
+    cavitation_number(1.0 if ns.speed is None else ns.speed, ns.depth, fluid.density,
+                      fluid.vapour_pressure)
 
 
 def _margins(ns, result) -> str:

@@ -52,7 +52,7 @@ _MACH_LOW = 1e-2
 _MACH_GAP = 1e-12
 
 
-def _check_mach(mach) -> np.ndarray:
+def check_mach(mach) -> np.ndarray:
     m = np.asarray(mach, float)
     if not np.all(np.isfinite(m)):
         raise InputError("Mach number must be a finite number")
@@ -94,7 +94,7 @@ def prandtl_glauert(cp0, mach):
     -------
     ndarray
     """
-    m = _check_mach(mach)
+    m = check_mach(mach)
     return np.asarray(cp0, float) / np.sqrt(1.0 - m * m)
 
 
@@ -137,7 +137,7 @@ def karman_tsien(cp0, mach):
     -------
     ndarray
     """
-    m = _check_mach(mach)
+    m = check_mach(mach)
     return _apply(np.asarray(cp0, float), m, KARMAN_TSIEN, AIR_HEAT_RATIO)
 
 
@@ -157,13 +157,13 @@ def laitone(cp0, mach, heat_ratio: float = AIR_HEAT_RATIO):
     -------
     ndarray
     """
-    m = _check_mach(mach)
+    m = check_mach(mach)
     return _apply(np.asarray(cp0, float), m, LAITONE, _check_heat_ratio(heat_ratio))
 
 
 def corrected_cp(cp0, mach, rule: str = KARMAN_TSIEN, heat_ratio: float = AIR_HEAT_RATIO):
     """Compressible Cp by a named rule (prandtl-glauert, karman-tsien or laitone)."""
-    return _apply(np.asarray(cp0, float), _check_mach(mach), _check_rule(rule),
+    return _apply(np.asarray(cp0, float), check_mach(mach), _check_rule(rule),
                   _check_heat_ratio(heat_ratio))
 
 
@@ -379,7 +379,7 @@ def correct(analysis, mach: float, rule: str = KARMAN_TSIEN,
     InputError
         Mach number negative, not finite, or at or above 1; unknown rule.
     """
-    m = float(_check_mach(mach))
+    m = float(check_mach(mach))
     rule = _check_rule(rule)
     g = _check_heat_ratio(heat_ratio)
     fine = getattr(analysis, "fine", analysis)

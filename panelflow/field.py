@@ -32,6 +32,8 @@ from .solver import System
 # within the method's accuracy (measured against the exact circle and Karman-Trefftz fields in
 # tests/test_field.py).
 NEAR = 1.0
+# Largest grid: 25 million points take about 1.5 GB for the results of one angle.
+MAX_GRID_POINTS = 25_000_000
 _TWO_PI = 2.0 * np.pi
 
 
@@ -324,7 +326,10 @@ def grid_points(window, resolution) -> tuple[np.ndarray, tuple]:
     if not (x1 > x0 and y1 > y0):
         raise InputError(f"window {window}: need X0 < X1 and Y0 < Y1")
     if nx < 2 or ny < 2:
-        raise InputError(f"resolution {resolution}: need at least 2 points each way")
+        raise InputError(f"resolution {nx},{ny}: need at least 2 points each way")
+    if nx * ny > MAX_GRID_POINTS:
+        raise InputError(f"resolution {nx},{ny}: {nx * ny:.3g} points is more than the "
+                         f"{MAX_GRID_POINTS:.0e} a grid may have (evaluate several windows)")
     xs, ys = np.linspace(x0, x1, nx), np.linspace(y0, y1, ny)
     gx, gy = np.meshgrid(xs, ys)
     return (gx + 1j * gy).ravel(), (ny, nx)
