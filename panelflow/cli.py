@@ -1,12 +1,8 @@
-"""Command line: ``panelflow solve | check | section``. It composes library calls and prints.
+"""Command line: ``panelflow solve | field | compare | loads | run | check | section``.
 
-Every OUTLINE argument is a file path or a built-in section spec (``naca2412``), optionally
-followed by transforms applied left to right, each introduced by ``@``::
-
-    naca0012@name=flap@scale=0.3@pitch=15@move=1.02,-0.06
-
-``name=TEXT`` names the body, ``scale=S`` scales about the origin, ``pitch=DEG`` pitches nose-up
-about the body's own leading edge, ``move=DX,DY`` translates.
+It composes library calls and prints; every number comes from the library. OUTLINE arguments
+(files or section specs with ``@`` transforms) and angle lists are read by
+:mod:`panelflow.bodies`.
 """
 
 from __future__ import annotations
@@ -15,12 +11,13 @@ import argparse
 import json
 import re
 import sys
-from pathlib import Path
 
 import numpy as np
 
 from . import __version__
-from .errors import GeometryError, InputError, PanelflowError
+from . import bodies as bodies_mod
+from .bodies import load_bodies, parse_point
+from .errors import InputError, PanelflowError
 
 
 class _Parser(argparse.ArgumentParser):
@@ -66,93 +63,11 @@ def _join_numeric_values(argv):
 
 
 def parse_angles(items) -> np.ndarray:
-    """Angles from values and START:STOP:STEP ranges (STOP included), space or comma separated."""
-    out = []
-    for item in (part for text in items for part in text.split(",") if part):
-        parts = item.split(":")
-        try:
-            nums = [float(p) for p in parts]
-        except ValueError:
-            raise InputError(f"--alpha {item}: not a number or START:STOP:STEP") from None
-        if len(nums) == 1:
-            out.append(nums[0])
-        elif len(nums) == 3:
-            start, stop, step = nums
-            if step == 0 or (stop - start) * step < 0:
-                raise InputError(f"--alpha {item}: STEP must be non-zero and go from START to STOP")
-            count = int(np.floor((stop - start) / step + 1e-9)) + 1
-            if count > 100_000:
-                raise InputError(f"--alpha {item}: {count} angles is too many")
-            out.extend(start + step * np.arange(count))
-        else:
-            raise InputError(f"--alpha {item}: use a value or START:STOP:STEP")
-    angles = np.array(out, float)
-    if not np.all(np.isfinite(angles)):
-        raise InputError("--alpha: angles must be finite")
-    return angles
-
-
-def parse_point(text: str, option: str, sep: str = " ") -> tuple[float, float]:
+    """``--alpha`` values (see :func:`panelflow.bodies.parse_angles`), errors naming the option."""
     try:
-        x, y = (float(v) for v in text.split(","))
-    except ValueError:
-        raise InputError(f"{option}{sep}{text}: give two numbers as X,Y") from None
-    return x, y
-
-
-def _transform(outline, key: str, value: str, arg: str):
-    try:
-        return _apply(outline, key, value, arg)
-    except GeometryError as exc:
-        raise InputError(f"{arg}: {key}={value}: {str(exc).split(': ', 1)[-1]}") from None
-
-
-def _apply(outline, key: str, value: str, arg: str):
-    try:
-        if key == "name":
-            return outline.renamed(value)
-        if key == "scale":
-            return outline.scaled(float(value))
-        if key == "pitch":
-            return outline.rotated(float(value), about=outline.leading_edge)
-        if key == "move":
-            dx, dy = parse_point(value, f"{arg}: move=", sep="")
-            return outline.translated(dx, dy)
-    except ValueError:
-        raise InputError(f"{arg}: {key}={value} is not a number") from None
-    raise InputError(f"{arg}: unknown transform {key!r}; use name=, scale=, pitch= or move=")
-
-
-def _split_transforms(arg: str):
-    """Source and transform steps of an OUTLINE argument (a path may itself contain '@')."""
-    parts = arg.split("@")
-    for k in range(len(parts), 0, -1):
-        if Path("@".join(parts[:k])).exists():
-            return "@".join(parts[:k]), parts[k:]
-    return parts[0], parts[1:]
-
-
-def load_bodies(args) -> list:
-    """Outlines of every OUTLINE argument, transforms applied, names made unique."""
-    from .readers import load_outlines
-
-    bodies = []
-    for arg in args:
-        source, steps = _split_transforms(arg)
-        outlines = load_outlines(source)
-        for step in steps:
-            key, sep, value = step.partition("=")
-            if not sep:
-                raise InputError(f"{arg}: transform {step!r} needs the form key=value")
-            outlines = [_transform(o, key.strip().lower(), value.strip(), arg) for o in outlines]
-        bodies.extend(outlines)
-    seen = {}
-    unique = []
-    for o in bodies:
-        n = seen.get(o.name, 0)
-        seen[o.name] = n + 1
-        unique.append(o if n == 0 else o.renamed(f"{o.name}-{n + 1}"))
-    return unique
+        return bodies_mod.parse_angles(list(items))
+    except InputError as exc:
+        raise InputError(f"--alpha {exc}") from None
 
 
 def _flapped(ns, bodies):
@@ -338,23 +253,53 @@ def _cmd_field(ns) -> int:
 
 def _cmd_compare(ns) -> int:
     from .analysis import analyse
+    from .families import expand_arguments
     from .report import compare_table
 
-    cases = [load_bodies([arg]) for arg in ns.outlines]
+    cases = [load_bodies([arg]) for arg in expand_arguments(ns.outlines)]
     alphas = parse_angles(ns.alpha)
     if ns.plot:
         from .plots import check_figure_path
 
         check_figure_path(ns.plot, ns.force)
+    if ns.output:
+        from .polars import check_table_outputs
+
+        check_table_outputs(ns.output, ns.force)
     n_panels = None if ns.keep_points else ns.panels
     analyses = [analyse(bodies, alphas, n_panels=n_panels) for bodies in cases]
     labels = [", ".join(o.name for o in bodies) for bodies in cases]
     sys.stdout.write(compare_table(analyses, labels))
-    if ns.plot:
-        from .plots import compare_cp_figure
+    written = []
+    if ns.output:
+        from .polars import polar, tidy_table, write_table
 
-        compare_cp_figure(analyses, labels, alphas[0], ns.plot, overwrite=ns.force)
-        print(f"wrote {ns.plot}", file=sys.stderr)
+        table = tidy_table([polar(a, label) for a, label in zip(analyses, labels)])
+        written += [write_table(table, path, ns.force) for path in ns.output]
+    if ns.plot:
+        if len(alphas) > 1:  # a range of angles: polars; one angle: the Cp distributions
+            from .plots import polar_figure
+
+            written.append(polar_figure(analyses, labels, ns.plot, overwrite=ns.force))
+        else:
+            from .plots import compare_cp_figure
+
+            written.append(compare_cp_figure(analyses, labels, alphas[0], ns.plot,
+                                             overwrite=ns.force))
+    for path in written:
+        print(f"wrote {path}", file=sys.stderr)
+    return 0
+
+
+def _cmd_run(ns) -> int:
+    from .cases import load_case
+    from .study import open_executor, run_case
+
+    case = load_case(ns.case)
+    with open_executor(workers=ns.workers, scheduler=ns.scheduler) as executor:
+        report = run_case(case, executor, output=ns.output, overwrite=ns.force,
+                          progress=True if ns.progress else None)
+    sys.stdout.write(report.summary())
     return 0
 
 
@@ -500,13 +445,31 @@ def build_parser() -> argparse.ArgumentParser:
     f.set_defaults(func=_cmd_field)
 
     m = sub.add_parser("compare", parents=[common, geometry],
-                       help="several sections (or cases) side by side at one angle")
+                       help="several sections (or cases) side by side")
     m.add_argument("outlines", nargs="+", metavar="OUTLINE",
-                   help="one case per argument (a file with several bodies is one case)")
+                   help="one case per argument (a file with several bodies is one case); "
+                   "families such as naca00{06..18:3} and file patterns such as *.dat expand")
     m.add_argument("--alpha", nargs="+", action="extend", metavar="A", required=True,
-                   help="angle of attack in degrees (the first one is plotted)")
-    m.add_argument("--plot", metavar="FIGURE", help="overlaid surface Cp (.png/.svg/.pdf)")
+                   help=alpha_help)
+    m.add_argument("--plot", metavar="FIGURE",
+                   help="figure (.png/.svg/.pdf): overlaid surface Cp for one angle, polars "
+                   "(Cl, Cm, minimum Cp against angle) for several")
+    m.add_argument("-o", "--output", action="append", metavar="FILE",
+                   help="table with one row per case and angle (.csv or .json)")
     m.set_defaults(func=_cmd_compare)
+
+    r = sub.add_parser("run", parents=[common],
+                       help="run a study from a TOML case file into an output folder")
+    r.add_argument("case", metavar="CASE.toml")
+    where = r.add_mutually_exclusive_group()
+    where.add_argument("--workers", type=int, metavar="N", help="local worker processes")
+    where.add_argument("--scheduler", metavar="ADDRESS",
+                       help="a running Dask distributed scheduler (needs panelflow[cluster])")
+    r.add_argument("-o", "--output", metavar="DIR", help="output folder (default: from the case)")
+    r.add_argument("--force", action="store_true", help="replace existing output files")
+    r.add_argument("--progress", action="store_true",
+                   help="show the progress bar even when stderr is not a terminal")
+    r.set_defaults(func=_cmd_run)
 
     ld = sub.add_parser("loads", parents=[common, geometry],
                         help="dimensional pressure loads for a structural model")

@@ -1,4 +1,5 @@
-"""Figures: surface Cp of one case, Cp of several cases compared, and the Cp field around bodies.
+"""Figures: surface Cp of one case, Cp of several cases compared, the Cp field around bodies, and
+polars (Cl, Cm and minimum Cp against the angle of attack, several sections overlaid).
 
 Every figure is drawn on a bare :class:`matplotlib.figure.Figure` with the Agg canvas (no pyplot,
 no global figure state, no window) and written atomically in the format named by the file's
@@ -33,6 +34,7 @@ __all__ = [
     "surface_cp_figure",
     "compare_cp_figure",
     "field_figure",
+    "polar_figure",
 ]
 
 FIGURE_FORMATS = (".png", ".svg", ".pdf")
@@ -203,7 +205,7 @@ def _xy(value, scale: float) -> str:
 
 
 def _angle(a: float) -> str:
-    return _minus(f"{a:.2f}°")
+    return _minus(f"{round(a, 2) + 0.0:.2f}°")  # + 0.0: no "-0.00" for a tiny negative
 
 
 def _panels(analysis) -> str:
@@ -768,3 +770,240 @@ def field_figure(field, bodies, path, streamlines=(), overwrite: bool = False, l
     check_figure_path(path, overwrite)
     fig = _build_field_figure(field, bodies, streamlines, levels, title, alpha_index)
     return _save(fig, path, overwrite)
+
+
+# ------------------------------------------------------------------------------- polar figure
+_POLAR_AX_H = 1.85  # inches per coefficient axes
+_POLAR_AX_GAP = 0.14
+_POLAR_MARKERS_UP_TO = 30  # points marked when a polar has at most this many angles
+
+
+@dataclass(frozen=True)
+class _PolarTrace:
+    label: str
+    alpha: np.ndarray
+    cl: np.ndarray
+    cm: np.ndarray
+    cp_min: np.ndarray
+    panels: str
+
+
+def _polar_traces(items, labels) -> list:
+    """Analyses, Polars or Tables (one per section, or a tidy table split by its section
+    column) as traces sorted by angle."""
+    from .polars import Polar, Table, polar
+
+    items = list(items) if isinstance(items, (list, tuple)) else [items]
+    if not items:
+        raise InputError("no polar to draw")
+    if labels is not None:
+        labels = [str(lab) for lab in labels]
+        if len(labels) != len(items):
+            raise InputError(f"{len(labels)} labels for {len(items)} polars; give one each")
+    out = []
+    for j, item in enumerate(items):
+        given = None if labels is None else labels[j]
+        if hasattr(item, "fine"):
+            item = polar(item, given)
+        if isinstance(item, Polar):
+            parts = [(given or item.label, item.alpha_deg, item.cl, item.cm, item.cp_min,
+                      " + ".join(str(n) for n in item.panels))]
+        elif isinstance(item, Table):
+            if "section" in item.names:
+                sections = list(dict.fromkeys(item["section"]))
+                if len(sections) > 1 and given is not None:
+                    raise InputError("a table of several sections takes its labels from its "
+                                     "section column; give labels=None")
+                groups = [(given or s, item.where("section", s)) for s in sections]
+            else:
+                groups = [(given or f"polar {j + 1}", item)]
+            parts = [(lab, t["alpha_deg"], t["cl"], t["cm"], t["cp_min"], "")
+                     for lab, t in groups]
+        else:
+            raise InputError(f"cannot draw a polar of a {type(item).__name__}: give an "
+                             "Analysis, a Polar or a Table")
+        for lab, a, cl, cm, cpm, panels in parts:
+            a = np.asarray(a, float)
+            order = np.argsort(a, kind="stable")
+            out.append(_PolarTrace(str(lab), a[order], np.asarray(cl, float)[order],
+                                   np.asarray(cm, float)[order], np.asarray(cpm, float)[order],
+                                   panels))
+    if any(len(t.alpha) == 0 for t in out):
+        raise InputError("a polar without angles cannot be drawn")
+    return out
+
+
+def _lift_fit(alpha_deg, cl):
+    """Zero-lift angle (deg) and lift slope (per radian at zero lift) of ``cl = A cos a + B sin a``.
+
+    The circulation lift of one geometry is exactly of this form (superposition of two unit
+    solutions), so two angles fix it; the fit is used only where it reproduces the data to
+    1e-9 (a table from elsewhere may not follow it). Returns (nan, nan) otherwise.
+    """
+    a = np.radians(alpha_deg)
+    ok = np.isfinite(cl)
+    if ok.sum() < 2 or np.ptp(a[ok]) < 1e-6:
+        return float("nan"), float("nan")
+    basis = np.column_stack([np.cos(a[ok]), np.sin(a[ok])])
+    (coef_a, coef_b), *_ = np.linalg.lstsq(basis, cl[ok], rcond=None)
+    amp = float(np.hypot(coef_a, coef_b))
+    if amp < 1e-12 or np.max(np.abs(basis @ [coef_a, coef_b] - cl[ok])) > 1e-9 * max(amp, 1):
+        return float("nan"), float("nan")
+    # A cos a + B sin a = amp sin(a - a0) with a0 the zero-lift angle
+    a0 = float(np.degrees(np.arctan2(-coef_a, coef_b)))
+    return a0, amp
+
+
+def _build_polar_figure(items, labels=None, title=None):
+    """The polar figure, unsaved (see :func:`polar_figure`).
+
+    Returns
+    -------
+    matplotlib.figure.Figure
+        ``fig.axes[0:3]`` are the Cl, Cm and Cp-min axes (the last with y inverted: suction up),
+        sharing the angle-of-attack axis; the legend is on the Cl axes.
+    """
+    from matplotlib.figure import Figure
+    from matplotlib.lines import Line2D
+    from matplotlib.ticker import MaxNLocator
+
+    traces = _polar_traces(items, labels)
+    plot_w = _W - _LEFT - _RIGHT - _CARD_W - _GAP
+    note = _note_lines(CAUTION, _W - _LEFT - _RIGHT, FONT["note"])
+    note_h = 0.12 + _NOTE_LINE_H * len(note)
+    axes_h = 3 * _POLAR_AX_H + 2 * _POLAR_AX_GAP
+    card_lines = sum(5 + len(_wrap_card(t.label)) for t in traces) + len(traces) + 2
+    body_h = max(axes_h, _CARD_LINE_H * card_lines + 0.1)
+    H = _TITLE_H + body_h + _XLABEL_H + note_h
+    fig = Figure(figsize=(_W, H))
+
+    def rect(left, bottom, width, height):
+        return [left / _W, bottom / H, width / _W, height / H]
+
+    top = note_h + _XLABEL_H + body_h
+    axes = []
+    for k in range(3):
+        bottom = top - (k + 1) * _POLAR_AX_H - k * _POLAR_AX_GAP
+        ax = fig.add_axes(rect(_LEFT, bottom, plot_w, _POLAR_AX_H),
+                          sharex=axes[0] if axes else None)
+        _style_axes(ax)
+        axes.append(ax)
+    ax_cl, ax_cm, ax_cp = axes
+    many = max(len(t.alpha) for t in traces) > _POLAR_MARKERS_UP_TO
+    for j, t in enumerate(traces):
+        colour = PALETTE[j % len(PALETTE)]
+        style = dict(color=colour, linewidth=LINE["upper"], solid_joinstyle="round", zorder=3,
+                     marker=None if many else "o", markersize=2.6, markeredgewidth=0)
+        ax_cl.plot(t.alpha, t.cl, **style)
+        ax_cm.plot(t.alpha, t.cm, **style)
+        ax_cp.plot(t.alpha, t.cp_min, **style)
+    for ax, name in ((ax_cl, "Cl"), (ax_cm, "Cm"), (ax_cp, "Cp min")):
+        ax.axhline(0.0, color=MUTED, linewidth=0.7, zorder=1)
+        ax.axvline(0.0, color=RULE, linewidth=0.8, zorder=1)
+        ax.set_ylabel(name, fontsize=FONT["label"], color=INK, rotation=0, ha="left",
+                      va="center")
+        ax.yaxis.set_label_coords(-_YLABEL_X / plot_w, 0.5)
+        ax.yaxis.set_major_locator(MaxNLocator(nbins=6, steps=[1, 2, 2.5, 5, 10]))
+    for ax in (ax_cl, ax_cm):
+        ax.tick_params(labelbottom=False)
+    ax_cp.invert_yaxis()  # suction up, as on the Cp figures
+    a_all = np.concatenate([t.alpha for t in traces])
+    a0, a1 = float(a_all.min()), float(a_all.max())
+    pad = 0.03 * (a1 - a0) if a1 > a0 else 1.0
+    ax_cp.set_xlim(a0 - pad, a1 + pad)
+    ax_cp.xaxis.set_major_locator(MaxNLocator(nbins=10, steps=[1, 2, 2.5, 5, 10],
+                                              integer=True))
+    ax_cp.xaxis.set_major_formatter(lambda v, _pos: _minus(f"{v:g}°"))
+    ax_cp.set_xlabel("angle of attack", fontsize=FONT["label"], color=INK)
+
+    if title is None:
+        title = "Lift, pitching moment and suction peak against angle of attack"
+    fig.text(_LEFT / _W, 1.0 - 0.22 / H, title, fontsize=FONT["title"], color=INK,
+             weight="bold", va="center", ha="left")
+
+    # card column: legend (the sections), then per section its fitted zero-lift angle and slope
+    x_card = (_W - _RIGHT - _CARD_W) / _W
+    x_val = x_card + 0.95 / _W
+    step = _CARD_LINE_H / H
+    y = top / H
+    handles = [Line2D([], [], color=PALETTE[j % len(PALETTE)], linewidth=LINE["upper"])
+               for j in range(len(traces))]
+    leg = ax_cl.legend(handles, [t.label for t in traces], loc="upper left",
+                       bbox_to_anchor=(x_card, y), bbox_transform=fig.transFigure,
+                       fontsize=FONT["legend"], title="sections", title_fontsize=FONT["legend"],
+                       alignment="left", frameon=False, borderpad=0.0, borderaxespad=0.0,
+                       handlelength=2.3, handletextpad=0.6, labelspacing=0.45)
+    for text in leg.get_texts():
+        text.set_color(INK)
+    leg.get_title().set_color(MUTED)
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+
+    renderer = FigureCanvasAgg(fig).get_renderer()
+    y -= leg.get_window_extent(renderer).height / fig.dpi / H + 0.6 * step
+    fig.add_artist(Line2D([x_card, x_card + (_CARD_W - 0.1) / _W], [y, y], color=RULE,
+                          linewidth=0.6, transform=fig.transFigure))
+    y -= 0.5 * step
+    for j, t in enumerate(traces):
+        colour = PALETTE[j % len(PALETTE)]
+        for text in _wrap_card(t.label):
+            fig.text(x_card, y, text, fontsize=FONT["card"], color=colour, weight="bold",
+                     va="top", ha="left")
+            y -= step
+        a_zero, slope = _lift_fit(t.alpha, t.cl)
+        i_min = int(np.nanargmin(t.cp_min)) if np.isfinite(t.cp_min).any() else None
+        rows = [("panels", t.panels or "not recorded"),
+                ("angles", f"{len(t.alpha)} from {_angle(t.alpha[0])} to {_angle(t.alpha[-1])}"),
+                ("zero lift at", "not fitted" if not np.isfinite(a_zero) else _angle(a_zero)),
+                ("lift slope", "not fitted" if not np.isfinite(slope)
+                 else f"{slope:.4f} per rad"),
+                ("Cp min", "undefined" if i_min is None else
+                 f"{_fixed(t.cp_min[i_min], 3)} at {_angle(t.alpha[i_min])}")]
+        for key, value in rows:
+            fig.text(x_card, y, key, fontsize=FONT["card"], color=MUTED, va="top", ha="left")
+            fig.text(x_val, y, value, fontsize=FONT["card"], color=INK, va="top", ha="left")
+            y -= step
+        y -= 0.5 * step
+
+    fig.text(_LEFT / _W, (0.08 + _NOTE_LINE_H * (len(note) - 0.5)) / H, "\n".join(note),
+             fontsize=FONT["note"], color=MUTED, va="center", ha="left", linespacing=1.35)
+    return fig
+
+
+def polar_figure(analyses_or_tables, labels=None, path=None, overwrite: bool = False,
+                 title: str | None = None) -> Path:
+    """Write Cl, Cm and the minimum Cp against the angle of attack, several sections overlaid.
+
+    Three axes share the angle-of-attack axis: lift coefficient, pitching moment coefficient
+    (about each case's reference point, nose-up positive) and the main body's minimum Cp with
+    suction upward, as on the Cp figures. The card column names the sections (legend) and gives
+    for each its panels, angle range, the zero-lift angle and lift slope fitted to
+    ``cl = A cos(alpha) + B sin(alpha)`` (exact for the inviscid circulation lift of one
+    geometry; "not fitted" where the data do not follow it) and its lowest Cp with its angle.
+
+    Parameters
+    ----------
+    analyses_or_tables : Analysis, Polar or Table, or a sequence of them
+        One per section; a :class:`~panelflow.polars.Table` with a ``section`` column (a study
+        table) gives one curve per section.
+    labels : sequence of str, optional
+        One legend label per item; default each polar's label (an analysis: its body names).
+    path : str or Path
+        Output file (``.png``, ``.svg``, ``.pdf``).
+    overwrite : bool
+    title : str, optional
+
+    Returns
+    -------
+    Path
+
+    Raises
+    ------
+    OutputError
+        Unknown extension, missing folder, or an existing file without ``overwrite``.
+    InputError
+        Nothing to draw, labels that do not match the items.
+    """
+    if path is None:
+        raise InputError("polar_figure: give the figure's path")
+    check_figure_path(path, overwrite)
+    return _save(_build_polar_figure(analyses_or_tables, labels, title), path, overwrite)
