@@ -842,3 +842,41 @@ def test_loads_usage_errors(argv, workdir, capsys):
     assert_usage_error(["loads", "naca2412", "--alpha", "4", *QUICK, *argv, "-o", "loads.json"],
                        capsys)
     assert files_in(workdir) == []
+
+
+# ----------------------------------------------------------------------------- run and sweeps
+STUDY_CASE = Path(__file__).resolve().parent.parent / "geometries" / "tender_study.toml"
+
+
+def test_run_example_case_writes_everything_once(tmp_path, capsys):
+    out = tmp_path / "study"
+    code, stdout, err = run(capsys, "run", str(STUDY_CASE), "-o", str(out), "--workers", "1")
+    assert code == 0, err
+    names = {p.name for p in out.iterdir()}
+    assert {"polars.csv", "polars.png", "cp_4deg.png", "front_foil_field.vtu",
+            "front_foil_loads.json", "manifest.json"} <= names
+    manifest = json.loads((out / "manifest.json").read_text())
+    assert any(k.endswith("tender_front_foil.dat") for k in json.dumps(manifest).split('"'))
+    rows = list(csv.DictReader(line for line in (out / "polars.csv").read_text().splitlines()
+                               if not line.startswith("#")))
+    # 6 sections (front foil, two NACA candidates, a family of three) x 15 angles
+    assert len(rows) == 6 * 15
+    before = (out / "polars.csv").read_bytes()
+    code, _, err = run(capsys, "run", str(STUDY_CASE), "-o", str(out))
+    assert code == 1 and "exists" in err and len(err.strip().splitlines()) == 1
+    assert (out / "polars.csv").read_bytes() == before  # refused before anything was written
+
+
+def test_compare_family_table_and_polar_figure(tmp_path, capsys):
+    table, fig = tmp_path / "sweep.csv", tmp_path / "polars.png"
+    code, stdout, err = run(capsys, "compare", "naca00{09..15:6}", "--alpha", "0:4:2",
+                            "--panels", "80", "-o", str(table), "--plot", str(fig))
+    assert code == 0, err
+    rows = list(csv.DictReader(line for line in table.read_text().splitlines()
+                               if not line.startswith("#")))
+    assert [r["section"] for r in rows] == ["naca0009"] * 3 + ["naca0015"] * 3
+    assert fig.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+    # the table's cl are the printed ones (same computation, 5 decimals printed)
+    printed = [float(line.split()[2]) for line in stdout.splitlines() if line.startswith("naca")]
+    # printed to 5 decimals: equal to within half a unit of the last one
+    assert printed == pytest.approx([float(r["cl"]) for r in rows], abs=5e-6)
