@@ -126,7 +126,7 @@ def test_results_come_back_in_task_order(tasks, serial):
 def test_dask_local_cluster_equals_serial(tasks, serial):
     distributed = pytest.importorskip("distributed")
     with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
-                                  dashboard_address=None) as cluster:
+                                  dashboard_address=":0") as cluster:
         with distributed.Client(cluster) as client:
             _assert_identical(run_study(tasks, client.get_executor()), serial)
         # the --scheduler path: make_executor connects its own client to the address
