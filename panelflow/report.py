@@ -186,7 +186,7 @@ def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
 
 def boundary_table(b) -> str:
     """Coefficients of bodies near a wall or free surface (``solve --ground/--free-surface``)."""
-    kind = b.boundary.kind.replace("_", " ")
+    kind = b.boundary.kind.replace("_", " ").replace("-", " ")
     lines = [f"bodies: {', '.join(b.body_names)} near a {kind} at y = {b.image.plane_y:.6g}; "
              "freestream along x, each angle pitches the bodies nose-up about "
              f"({b.pitch_point[0]:.6g}, {b.pitch_point[1]:.6g})",
