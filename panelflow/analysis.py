@@ -189,6 +189,17 @@ def default_reference(outlines) -> tuple[ChordLine, np.ndarray]:
     return chord, main.chord_point(0.25)
 
 
+def checked_inputs(outlines, alpha_deg) -> tuple[tuple, np.ndarray]:
+    """The outlines as a tuple and the angles as a 1-D array, or InputError."""
+    outlines = tuple(outlines)
+    if not outlines:
+        raise InputError("no outline given")
+    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
+    if alpha.ndim != 1 or not np.all(np.isfinite(alpha)):
+        raise InputError("angles of attack must be finite numbers")
+    return outlines, alpha
+
+
 def _reference(outlines, chord_line):
     if chord_line is None:
         return default_reference(outlines)
@@ -241,12 +252,7 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     -------
     Analysis
     """
-    outlines = tuple(outlines)
-    if not outlines:
-        raise InputError("no outline given")
-    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
-    if alpha.ndim != 1 or not np.all(np.isfinite(alpha)):
-        raise InputError("angles of attack must be finite numbers")
+    outlines, alpha = checked_inputs(outlines, alpha_deg)
     chord, quarter = _reference(outlines, chord_line)
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
     panellings, system = build(outlines, n_panels)

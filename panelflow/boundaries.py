@@ -41,7 +41,8 @@ import numpy as np
 import scipy.linalg
 
 from . import check, influence
-from .analysis import DEFAULT_PANELS, ORDER, ROUND_OFF, SAFETY_FACTOR, default_reference
+from .analysis import (DEFAULT_PANELS, ORDER, ROUND_OFF, SAFETY_FACTOR, checked_inputs,
+                       default_reference)
 from .errors import GeometryError, InputError, SolveError
 from .outline import SMOOTH, Outline
 from .panelling import panel_outline
@@ -581,12 +582,7 @@ def analyse_with_boundary(outlines, alpha_deg, boundary: Boundary,
     GeometryError
         A body reaches or crosses the plane at some angle.
     """
-    outlines = tuple(outlines)
-    if not outlines:
-        raise InputError("no outline given")
-    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
-    if alpha.ndim != 1 or not np.all(np.isfinite(alpha)):
-        raise InputError("angles of attack must be finite numbers")
+    outlines, alpha = checked_inputs(outlines, alpha_deg)
     pitch = (outlines[0].chord_point(0.25) if pitch_point is None
              else np.asarray(pitch_point, float))
     if boundary.distance > MAX_DISTANCE_CHORDS * outlines[0].chord:

@@ -15,7 +15,10 @@ import numpy as np
 import pytest
 from exact import KarmanTrefftz
 
+import json
+
 import panelflow as pf
+from panelflow.cli import main
 from panelflow.outline import Outline
 
 # Angles of attack for the mapped sections, degrees from the x-axis (-4 to 10 deg).
@@ -119,3 +122,18 @@ def mapped_analysis():
 @pytest.fixture(scope="session")
 def mapped_alphas_deg() -> np.ndarray:
     return MAPPED_ALPHAS_DEG.copy()
+
+
+# ----------------------------------------------------------------------------- command line
+def run(capsys, *argv):
+    """Exit code, stdout and stderr of one in-process command-line run."""
+    code = main([str(a) for a in argv])
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def run_json(capsys, *argv) -> dict:
+    """The parsed ``--json`` output of a run that must succeed."""
+    code, out, err = run(capsys, *argv, "--json")
+    assert code == 0, err
+    return json.loads(out)

@@ -18,7 +18,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from panelflow.cli import main
+from conftest import run, run_json
+
 from panelflow.readers import load_outlines
 
 REPO = Path(__file__).resolve().parents[1]
@@ -38,17 +39,6 @@ DEMO_FILES = {
 QUICK = ("--panels", "60")
 
 
-def run(capsys, *argv):
-    """Exit code, stdout and stderr of one in-process run."""
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def run_json(capsys, *argv) -> dict:
-    code, out, err = run(capsys, *argv, "--json")
-    assert code == 0, err
-    return json.loads(out)
 
 
 def _is_number(text: str) -> bool:

@@ -29,6 +29,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from conftest import run, run_json
+
 from panelflow.cli import main
 from panelflow.fluids import FLUIDS
 from panelflow.readers import load_outlines
@@ -52,17 +54,6 @@ HEAT_RATIO = 1.4  # air, common practice
 
 
 # ---------------------------------------------------------------------------------- helpers
-def run(capsys, *argv):
-    """Exit code, stdout and stderr of one in-process run."""
-    code = main([str(a) for a in argv])
-    out, err = capsys.readouterr()
-    return code, out, err
-
-
-def run_json(capsys, *argv) -> dict:
-    code, out, err = run(capsys, *argv, "--json")
-    assert code == 0, err
-    return json.loads(out)
 
 
 def run_quiet(*argv):
