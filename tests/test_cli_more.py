@@ -550,7 +550,7 @@ def plane_rows(out: str):
 
 
 @pytest.mark.parametrize("option, word", [("--ground", "wall"),
-                                          ("--free-surface", "free-surface")])
+                                          ("--free-surface", "free surface")])
 def test_near_plane_lift_differs_from_free_air(option, word, capsys):
     ref = free_air(capsys, "naca2412", ["0", "4"])
     code, out, err = run(capsys, "solve", "naca2412", "--alpha", "0", "4", *QUICK, option, "0.5")
