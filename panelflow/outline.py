@@ -44,18 +44,31 @@ def _feature_at_start(poly, turn, first, open_ends):
     points (equal for a sharp edge).
     """
     m = len(poly)
-    # a corner also stands out from the outline's typical turn (a coarse circle turns evenly)
-    least = 2.0 * float(np.median(np.abs(turn)))
+    # The freestream runs along +x: a trailing edge upstream of the body's middle is a loop that
+    # starts elsewhere (at a leading edge, say), so leave it to the search.
+    middle = 0.5 * (poly[:, 0].min() + poly[:, 0].max())
+    # A corner also stands out from the outline's typical turn (a coarse circle turns evenly)
+    # and is among the outline's sharpest (a loop that starts at a coarsely drawn leading edge
+    # turns there, but far less than at its trailing edge).
+    least = max(2.0 * float(np.median(np.abs(turn))), 0.5 * float(np.max(turn)))
     if open_ends:
         # the closing segment joins the input's last and first points
         a, b = (first - 1) % m, first
         lower, upper = (a, b) if (b - a) % m == 1 else (b, a)
-        if min(turn[lower], turn[upper]) > max(_BASE_TURN, least):
+        if (min(turn[lower], turn[upper]) > max(_BASE_TURN, least)
+                and poly[[lower, upper], 0].mean() > middle):
             return BLUNT, lower, upper
         return None
-    if turn[first] > max(_START_TURN, least):
+    if (turn[first] > max(_START_TURN, least) and _stands_alone(turn, first)
+            and poly[first, 0] > middle):
         return SHARP, first, first
     return None
+
+
+def _stands_alone(turn, i: int) -> bool:
+    """A corner turns at one point; a rounded nose, however coarsely drawn, also at the next."""
+    m = len(turn)
+    return bool(turn[i] > 2.0 * max(turn[(i - 1) % m], turn[(i + 1) % m]))
 
 
 def _search_feature(poly, turn, size):
@@ -65,7 +78,8 @@ def _search_feature(poly, turn, size):
     edge = np.hypot(*(nxt - poly).T)  # edge i runs from vertex i to i+1
     candidates = []  # (x position, kind, lower, upper)
     for i in np.flatnonzero(turn > _CORNER_TURN):
-        candidates.append((poly[i, 0], SHARP, int(i), int(i)))
+        if _stands_alone(turn, int(i)):
+            candidates.append((poly[i, 0], SHARP, int(i), int(i)))
     for i in np.flatnonzero(turn > _BASE_TURN):
         # walk along a straight run from corner i (the lower one, in CCW order) to the next corner
         length, j = edge[i], (i + 1) % m
@@ -76,6 +90,9 @@ def _search_feature(poly, turn, size):
                 and length < _BASE_MAX_FRACTION * size):
             mid = 0.5 * (poly[i, 0] + poly[j, 0])
             candidates.append((mid, BLUNT, int(i), int(j)))
+    # a corner of a base is no sharp trailing edge of its own
+    corners = {i for c in candidates if c[1] == BLUNT for i in c[2:]}
+    candidates = [c for c in candidates if c[1] == BLUNT or c[2] not in corners]
     if not candidates:
         return None
     _, kind, lower, upper = max(candidates, key=lambda c: c[0])
@@ -179,10 +196,12 @@ class Outline:
         name, source : str
             Body name and origin (for messages).
         starts_at_trailing_edge : bool
-            True when the loop is known to start and end at the trailing edge (coordinate tables,
-            built-in sections); then that point is taken as the trailing edge when it is a corner.
-            Otherwise (a polyline from a mesh file) the trailing edge is searched for: the most
-            downstream (largest x) sharp corner or blunt base, if any.
+            True when the loop should start and end at the trailing edge (coordinate tables,
+            built-in sections); then that point is taken as the trailing edge when it is a
+            corner in the downstream half of the body. Otherwise, and when the start is no such
+            corner (a table that starts at the leading edge, a polyline from a mesh file), the
+            trailing edge is searched for: the most downstream (largest x) sharp corner or blunt
+            base, if any.
 
         Returns
         -------
