@@ -372,7 +372,7 @@ def factorise(panels: Panels, image: Image) -> System:
     unit = scipy.linalg.lu_solve(lu, rhs)
     if not np.all(np.isfinite(unit)):
         raise SolveError("panel system with images gave non-finite strengths")
-    return System(panels, unit, base_factor, rcond)
+    return System(panels, unit, base_factor, rcond, image)
 
 
 def _real_velocity(system: System, points, column: int = 0) -> np.ndarray:
@@ -441,7 +441,11 @@ class BoundaryAnalysis:
     body_names : tuple of str
     surfaces : tuple of SurfaceSolution
         Per angle, the surface solution of the pitched geometry (evaluated at 0 deg: the
-        freestream along x), with node positions, Cp and stagnation points.
+        freestream along x), with node positions, Cp and stagnation points; its ``system``
+        carries the image, so :func:`panelflow.field.flow_field` on it (at 0 deg) gives the
+        field with the plane.
+    pitched : tuple of tuple of Outline
+        Per angle, the bodies as pitched for it.
     cautions : tuple of str
     """
 
@@ -462,6 +466,7 @@ class BoundaryAnalysis:
     clearance: np.ndarray
     body_names: tuple = field(repr=False)
     surfaces: tuple = field(repr=False)
+    pitched: tuple = field(repr=False)
     cautions: tuple = field(repr=False)
 
     def __post_init__(self):
@@ -597,10 +602,11 @@ def analyse_with_boundary(outlines, alpha_deg, boundary: Boundary,
     cl_err, cm_err = np.full(na, np.nan), np.full(na, np.nan)
     body_cl, body_cm, cp_min = (np.zeros((na, nb)) for _ in range(3))
     clearance = np.zeros(na)
-    surfaces = []
+    surfaces, pitched = [], []
     for i, a in enumerate(alpha):
-        _, panellings, system, sol, chord, ref, clearance[i] = _solve_angle(
+        bodies, panellings, system, sol, chord, ref, clearance[i] = _solve_angle(
             outlines, float(a), image, pitch, ref_given, n_panels)
+        pitched.append(tuple(bodies))
         c = chord.length
         cl_g[i] = 2.0 * _lagally_lift(system, image).sum() / c
         cl_p[i], cd_p[i], cm[i] = sol.cl_pressure[0], sol.cd_pressure[0], sol.cm[0]
@@ -618,6 +624,7 @@ def analyse_with_boundary(outlines, alpha_deg, boundary: Boundary,
         cd_pressure=cd_p, cm=cm, cl_error_estimate=cl_err, cm_error_estimate=cm_err,
         body_cl=body_cl, body_cm=body_cm, cp_min=cp_min, clearance=clearance,
         body_names=tuple(o.name for o in outlines), surfaces=tuple(surfaces),
+        pitched=tuple(pitched),
         cautions=CAUTIONS[boundary.kind])
 
 

@@ -233,18 +233,32 @@ def _cmd_field(ns) -> int:
         window = (_parse_numbers(ns.window, 4, "--window") if ns.window
                   else default_window(bodies))
         points, shape = grid_points(window, _parse_numbers(ns.resolution, 2, "--resolution", int))
-    result = analyse(bodies, alphas, n_panels=None if ns.keep_points else ns.panels,
-                     error_estimate=False, chord_line=chord_line)
-    system = result.fine.system
-    flow = flow_field(system, points, alphas, shape)
+    n_panels = None if ns.keep_points else ns.panels
+    boundary = _boundary(ns)
+    if boundary is None:
+        result = analyse(bodies, alphas, n_panels=n_panels, error_estimate=False,
+                         chord_line=chord_line)
+        system, field_alpha = result.fine.system, alphas
+    else:
+        from .boundaries import analyse_with_boundary
+
+        # with a plane the freestream stays along x and the angle pitches the bodies
+        result = analyse_with_boundary(bodies, alphas, boundary, n_panels=n_panels,
+                                       error_estimate=False)
+        system, field_alpha, bodies = result.surfaces[0].system, [0.0], list(result.pitched[0])
+    flow = flow_field(system, points, field_alpha, shape)
     for path in outputs:
         write_field(flow, path, outlines=bodies, overwrite=ns.force)
     if ns.plot:
         from .plots import field_figure
         from .streamlines import streamlines
 
-        lines = streamlines(system, alphas[0], window, n=ns.streamlines) if ns.streamlines else ()
-        field_figure(flow, bodies, ns.plot, streamlines=lines, overwrite=ns.force)
+        lines = (streamlines(system, field_alpha[0], window, n=ns.streamlines)
+                 if ns.streamlines else ())
+        title = None if boundary is None else (
+            f"Pressure field near a {boundary.kind.replace('-', ' ')}, bodies pitched "
+            f"{alphas[0]:g}°")
+        field_figure(flow, bodies, ns.plot, streamlines=lines, overwrite=ns.force, title=title)
     sys.stdout.write(field_summary(flow, result))
     for path in [*outputs, *([ns.plot] if ns.plot else [])]:
         print(f"wrote {path}", file=sys.stderr)
@@ -442,6 +456,11 @@ def build_parser() -> argparse.ArgumentParser:
     f.add_argument("--plot", metavar="FIGURE", help="Cp contours and streamlines (.png/.svg/.pdf)")
     f.add_argument("--streamlines", type=int, default=17, metavar="N",
                    help="streamlines drawn in the figure (default 17)")
+    fplane = f.add_mutually_exclusive_group()
+    fplane.add_argument("--ground", type=float, metavar="H",
+                        help="plane wall H below the quarter chord (the angle pitches the body)")
+    fplane.add_argument("--free-surface", type=float, metavar="H",
+                        help="free surface H above the quarter chord (high Froude number limit)")
     f.set_defaults(func=_cmd_field)
 
     m = sub.add_parser("compare", parents=[common, geometry],

@@ -97,6 +97,9 @@ def induced_velocity(system: System, points, strengths=None) -> np.ndarray:
         w += influence.blockwise(
             lambda blk: influence.source_velocity(blk, bz1, (bz2 - bz1) / bl, bl) @ sigma,
             pts, g.shape[1], dtype=complex, pairs_per_point=len(bz1))
+    if system.image is not None:  # a plane boundary: the bodies' mirror images
+        sigma = system.base_factor @ g if len(p.base_body) else None
+        w += system.image.velocity(pts, p, g, sigma)
     return w
 
 
@@ -157,11 +160,13 @@ def _body_polygons(system: System):
 
 
 def inside_bodies(system: System, points) -> np.ndarray:
-    """True for points inside (or on) any body's panel polygon."""
+    """True for points inside (or on) any body's panel polygon, or beyond a plane boundary."""
     pts = np.asarray(points, complex)
     mask = np.zeros(pts.shape, bool)
     for poly in _body_polygons(system):
         mask |= shapely.intersects_xy(poly, pts.real, pts.imag)
+    if system.image is not None:  # the far side of a wall or free surface is no flow
+        mask |= system.image.beyond(pts)
     return mask
 
 

@@ -144,12 +144,17 @@ def field_summary(flow, analysis) -> str:
     """Short account of a computed field (``panelflow field``)."""
     cp = flow.cp[0]
     outside = ~flow.inside
-    lines = [f"field at alpha {flow.alpha_deg[0]:g} deg: {len(flow.points)} points"
+    alpha = analysis.alpha_deg[0]
+    lines = [f"field at alpha {alpha:g} deg: {len(flow.points)} points"
              + (f" on a {flow.shape[1]} x {flow.shape[0]} grid" if len(flow.shape) == 2 else "")
              + f", {int(flow.inside.sum())} inside bodies",
              f"Cp from {np.nanmin(cp[outside]):.4f} to {np.nanmax(cp[outside]):.4f}; "
              f"speed up to {np.nanmax(flow.speed[0][outside]):.4f} x freestream",
-             f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f} ({analysis.n_panels} panels)"]
+             f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f}"]
+    if hasattr(analysis, "boundary"):
+        lines.append(f"near a {analysis.boundary.kind.replace('-', ' ')} at y = "
+                     f"{analysis.image.plane_y:.6g}: freestream along x, the bodies pitched by "
+                     f"{analysis.alpha_deg[0]:g} deg; points beyond the plane are masked")
     return "\n".join(lines) + "\n"
 
 

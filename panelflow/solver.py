@@ -46,6 +46,9 @@ class System:
         x (column 0) and along y (column 1).
     base_factor : ndarray, shape (n_base, n_nodes)
         Base source strength of each blunt body per unit nodal vorticity.
+    image : object or None
+        The mirror images of a plane boundary (:class:`panelflow.boundaries.Image`) when the
+        system was solved with one; the field then includes their velocity.
     condition : float
         Smallest over largest LU pivot magnitude (replaced by the 1-norm reciprocal condition
         estimate when that ratio is below 1e-10), for diagnostics.
@@ -55,6 +58,7 @@ class System:
     unit: np.ndarray = field(repr=False)
     base_factor: np.ndarray = field(repr=False)
     condition: float
+    image: object = field(default=None, repr=False)
 
     def gamma(self, alpha_deg) -> np.ndarray:
         """Nodal vorticity (= tangential surface speed for unit freestream), shape (n_alpha, n_nodes)."""

@@ -65,6 +65,7 @@ __all__ = [
 END_WINDOW = "window"
 END_BODY = "body"
 END_STAGNATION = "stagnation"
+END_PLANE = "plane"
 END_LENGTH = "length"
 
 # Integration tolerances (ATOL per unit window diagonal): the traced line stays on its
@@ -112,8 +113,8 @@ class Streamline:
         length.
     end_reason : str
         Why tracing stopped at the last point: ``"window"`` (left the window), ``"body"``
-        (reached a body surface), ``"stagnation"`` (speed fell to ``stop_speed``) or
-        ``"length"`` (reached ``max_length``).
+        (reached a body surface), ``"plane"`` (reached a wall or free surface), ``"stagnation"``
+        (speed fell to ``stop_speed``) or ``"length"`` (reached ``max_length``).
     alpha_deg : float
         Angle of attack in degrees.
 
@@ -431,8 +432,17 @@ def trace(system: System, alpha_deg: float, seed, window, max_length: float | No
         # a trial point inside a body is no stagnation point (the body event handles it)
         return speed - stop_speed if np.isfinite(speed) else stop_speed
 
-    events = (leave_window, reach_body, stagnate)
-    reasons = (END_WINDOW, END_BODY, END_STAGNATION)
+    events = [leave_window, reach_body, stagnate]
+    reasons = [END_WINDOW, END_BODY, END_STAGNATION]
+    image = system.image
+    if image is not None:  # a wall or free surface: the line ends where it reaches the plane
+        side = -1.0 if image.fluid_below else 1.0
+
+        def reach_plane(_s, y):
+            return side * (y[1] - image.plane_y) - stop_distance
+
+        events.append(reach_plane)
+        reasons.append(END_PLANE)
     for ev in events:
         ev.terminal = True
         ev.direction = -1.0

@@ -280,3 +280,49 @@ def test_body_reaching_the_plane():
     with pytest.raises(GeometryError, match="reaches the plane"):
         bnd.analyse_with_boundary([foil], [-10.0], bnd.Boundary.free_surface(0.05),
                                   error_estimate=False)
+
+
+# ----------------------------------------------------------------------------- field with a plane
+@pytest.mark.parametrize("wall", [True, False], ids=["wall", "surface"])
+def test_field_near_plane_meets_the_plane_condition(wall):
+    """The field of a body near a plane (image included) satisfies the plane's condition.
+
+    Wall: no flow through it, v = 0 on y = h (mirror-image construction, Milne-Thomson).
+    Free surface in the high-Froude-number limit: constant potential along it, so the velocity
+    along the surface is the freestream's, u = 1 (Katz & Plotkin treat the same image pair).
+    """
+    from panelflow.field import flow_field
+
+    plane = bnd.Boundary.ground(0.3) if wall else bnd.Boundary.free_surface(0.3)
+    result = bnd.analyse_with_boundary([naca4("2412")], [4.0], plane, n_panels=120,
+                                   error_estimate=False)
+    system, image = result.surfaces[0].system, result.image
+    toward_fluid = -1.0 if image.fluid_below else 1.0
+    x = np.linspace(-1.0, 2.0, 13)
+    on = flow_field(system, x + 1j * (image.plane_y + toward_fluid * 1e-9), [0.0])
+    if wall:
+        # at 1e-9 from the plane the normal velocity is ~1e-9 times its gradient: round-off
+        assert np.max(np.abs(on.v)) < 1e-7
+        assert np.min(np.abs(on.u - 1.0)) > 1e-3  # the body does disturb the flow there
+    else:
+        assert np.max(np.abs(on.u - 1.0)) < 1e-7  # constant potential: no tangential change
+        assert np.max(np.abs(on.v)) > 1e-2  # while the flow does cross the mean surface
+    beyond = flow_field(system, x + 1j * (image.plane_y - toward_fluid * 1e-3), [0.0])
+    assert beyond.inside.all() and np.isnan(beyond.cp).all()  # the far side is no flow
+
+
+def test_field_command_near_a_wall(tmp_path, capsys):
+    from conftest import run
+
+    out = tmp_path / "f.csv"
+    code, stdout, err = run(capsys, "field", "naca2412", "--alpha", "4", "--ground", "0.3",
+                            "--panels", "80", "--resolution", "21,11", "-o", str(out),
+                            "--plot", str(tmp_path / "f.png"), "--streamlines", "5")
+    assert code == 0, err
+    assert "near a wall" in stdout
+    rows = [ln.split(",") for ln in out.read_text().splitlines()
+            if ln and not ln.startswith("#")][1:]
+    y = np.array([float(r[1]) for r in rows])
+    inside = np.array([r[5].strip() == "1" for r in rows])
+    # the default window reaches below the wall (0.3 under the quarter chord): masked there
+    assert inside[y < -0.3].all() and not inside[(y > -0.25) & (y < -0.1)].any()
