@@ -368,8 +368,10 @@ def _union_loop(parts, start: complex, label: str) -> np.ndarray:
 
 # --------------------------------------------------------------------------- slotted flap
 def _smoothstep(s):
+    """0 to 1 with zero slope and curvature at both ends (so the fairing adds no curvature jump,
+    which would show as a kink in the surface Cp)."""
     s = np.clip(s, 0.0, 1.0)
-    return s * s * (3.0 - 2.0 * s)
+    return s * s * s * (s * (6.0 * s - 15.0) + 10.0)
 
 
 def slotted_flap(outline: Outline, hinge: float, angle_deg: float, gap: float = DEFAULT_GAP,
@@ -380,7 +382,8 @@ def slotted_flap(outline: Outline, hinge: float, angle_deg: float, gap: float = 
     radius blends from the hinge's distance to the upper surface to that to the lower one); the
     main element ends ``gap`` ahead of the flap nose with a sharp trailing edge on its mean
     line, both surfaces faired onto it over the last quarter chord (or half the main element if
-    shorter) with a smooth-step blend, so that its camber line is the section's own.
+    shorter) with a blend of continuous slope and curvature, so that its camber line is the
+    section's own.
 
     Parameters
     ----------
