@@ -134,9 +134,7 @@ def _cmd_solve(ns) -> int:
 def _boundary(ns):
     from .boundaries import Boundary
 
-    if ns.ground is not None and ns.free_surface is not None:
-        raise InputError("give either --ground or --free-surface, not both")
-    if ns.ground is not None:
+    if ns.ground is not None:  # argparse keeps the two options exclusive
         return Boundary.ground(ns.ground)
     if ns.free_surface is not None:
         return Boundary.free_surface(ns.free_surface)
@@ -398,6 +396,15 @@ def _geometry_parent() -> argparse.ArgumentParser:
     return g
 
 
+def _add_plane_options(parser) -> None:
+    plane = parser.add_mutually_exclusive_group()
+    plane.add_argument("--ground", type=float, metavar="H",
+                       help="plane wall (ground effect) H below the quarter chord (outline units; "
+                       "the angle pitches the bodies)")
+    plane.add_argument("--free-surface", type=float, metavar="H",
+                       help="free surface H above the quarter chord (high Froude number limit)")
+
+
 def build_parser() -> argparse.ArgumentParser:
     p = _Parser(prog="panelflow", description="2D inviscid panel analysis of foil and fairing "
                 "sections: surface pressure, lift and pitching moment with error estimates.")
@@ -434,11 +441,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--fluid", metavar="NAME", help="fresh-water or sea-water (for --depth)")
     s.add_argument("--speed", type=float, metavar="V",
                    help="speed in m/s for the cavitation number and margin (with --depth)")
-    plane = s.add_mutually_exclusive_group()
-    plane.add_argument("--ground", type=float, metavar="H",
-                       help="plane wall (ground effect) H below the quarter chord (outline units)")
-    plane.add_argument("--free-surface", type=float, metavar="H",
-                       help="free surface H above the quarter chord (high Froude number limit)")
+    _add_plane_options(s)
     s.set_defaults(func=_cmd_solve)
 
     f = sub.add_parser("field", parents=[common, geometry],
@@ -456,11 +459,7 @@ def build_parser() -> argparse.ArgumentParser:
     f.add_argument("--plot", metavar="FIGURE", help="Cp contours and streamlines (.png/.svg/.pdf)")
     f.add_argument("--streamlines", type=int, default=17, metavar="N",
                    help="streamlines drawn in the figure (default 17)")
-    fplane = f.add_mutually_exclusive_group()
-    fplane.add_argument("--ground", type=float, metavar="H",
-                        help="plane wall H below the quarter chord (the angle pitches the body)")
-    fplane.add_argument("--free-surface", type=float, metavar="H",
-                        help="free surface H above the quarter chord (high Froude number limit)")
+    _add_plane_options(f)
     f.set_defaults(func=_cmd_field)
 
     m = sub.add_parser("compare", parents=[common, geometry],
