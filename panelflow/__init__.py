@@ -8,11 +8,14 @@ Typical use::
     print(result[1])
 """
 
-from .analysis import Analysis, AngleResult, BodyAngleResult, alpha_for_cl, analyse
-from .errors import GeometryError, InputError, OutputError, PanelflowError, SolveError
-from .outline import Outline
+from panelflow import _moved
+from panelflow.analysis.inviscid import (Analysis, AngleResult, BodyAngleResult, alpha_for_cl,
+                                         analyse)
+from panelflow.errors import GeometryError, InputError, OutputError, PanelflowError, SolveError
+from panelflow.geometry.outline import Outline
+from panelflow.version import __version__
 
-__version__ = "0.1.0"
+_moved.install()
 
 __all__ = [
     "Analysis", "AngleResult", "BodyAngleResult", "alpha_for_cl", "analyse", "GeometryError",
@@ -22,7 +25,16 @@ __all__ = [
 
 
 def load_outlines(spec_or_path: str):
-    """Outlines from a section spec (``naca2412``) or a file; see :mod:`panelflow.readers`."""
-    from .readers import load_outlines as _load
+    """Outlines from a section spec (``naca2412``) or a file; see :mod:`panelflow.geometry.readers`."""
+    from panelflow.geometry.readers import load_outlines as _load
 
     return _load(spec_or_path)
+
+
+def __getattr__(name):
+    # pf.<old module name> (before the subpackages) still resolves, with a DeprecationWarning
+    if name in _moved.MOVED:
+        import importlib
+
+        return importlib.import_module(f"panelflow.{name}")
+    raise AttributeError(f"module 'panelflow' has no attribute {name!r}")

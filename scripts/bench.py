@@ -26,9 +26,9 @@ import numpy as np
 import scipy.linalg
 
 import panelflow as pf
-from panelflow.analysis import build, default_reference
-from panelflow.sections import naca4
-from panelflow.surface import evaluate
+from panelflow.analysis.inviscid import build, default_reference
+from panelflow.geometry.sections import naca4
+from panelflow.flow.surface import evaluate
 
 GOALS = {"a": 4.0, "b": 1.3, "c": 2.0, "d": 3.0}
 GOAL_E = 1.7  # speed-up, at least
@@ -101,7 +101,7 @@ def bench_cli():
 
 def bench_field(n: int = 200, n_panels: int = 200):
     """(field s, complex log s, ratio) for benchmark (d)."""
-    from panelflow.field import flow_field, grid_points
+    from panelflow.flow.field import flow_field, grid_points
 
     foil = [naca4("2412", closed_te=True)]
     system = pf.analyse(foil, [4.0], n_panels=n_panels, error_estimate=False).fine.system
@@ -116,7 +116,7 @@ def field_peak_memory(n: int = 1000) -> float:
     """Peak traced memory (MB) of a n x n field around a 200-panel foil."""
     import tracemalloc
 
-    from panelflow.field import flow_field, grid_points
+    from panelflow.flow.field import flow_field, grid_points
 
     foil = [naca4("2412", closed_te=True)]
     system = pf.analyse(foil, [4.0], n_panels=200, error_estimate=False).fine.system
@@ -129,7 +129,7 @@ def field_peak_memory(n: int = 1000) -> float:
 
 
 def _study_tasks():
-    from panelflow.study import section_tasks
+    from panelflow.study.runner import section_tasks
 
     # 20 sections: camber 0-3 %, thickness 8-20 % (5 steps); 81 angles -10..10 deg
     return section_tasks(["naca{0..3}4{08..20:3}"], np.arange(-10.0, 10.001, 0.25))
@@ -139,7 +139,7 @@ def bench_study():
     """(1 worker s, 2 workers s, ratio, in-process s, 2 workers with pool start s) for (e)."""
     import concurrent.futures as cf
 
-    from panelflow.study import _one_blas_thread, make_executor, run_study
+    from panelflow.study.runner import _one_blas_thread, make_executor, run_study
 
     tasks = _study_tasks()
     assert len(tasks) == 20 and len(tasks[0].alpha_deg) == 81
@@ -165,8 +165,8 @@ def bench_runner_overhead():
     objects, the polar extraction and, on processes, pickling and the round trip; the 2-process
     figure is the runner's time on two processes minus half the bare time.
     """
-    from panelflow.readers import load_outlines
-    from panelflow.study import make_executor, run_study
+    from panelflow.geometry.readers import load_outlines
+    from panelflow.study.runner import make_executor, run_study
 
     tasks = _study_tasks()
     n = len(tasks)

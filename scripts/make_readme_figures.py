@@ -16,9 +16,9 @@ OUT = HERE / "figures"
 def make(out: Path = OUT) -> list[Path]:
     """Write the surface-Cp and field figures of the demo front foil at 4 degrees."""
     import panelflow as pf
-    from panelflow.field import flow_field, grid_points
-    from panelflow.plots import field_figure, surface_cp_figure
-    from panelflow.streamlines import streamlines
+    from panelflow.flow.field import flow_field, grid_points
+    from panelflow.output.figures import field_figure, surface_cp_figure
+    from panelflow.flow.streamlines import streamlines
 
     foil = pf.load_outlines(str(GEOMETRY))
     result = pf.analyse(foil, [4.0])

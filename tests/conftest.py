@@ -18,8 +18,8 @@ from exact import KarmanTrefftz
 import json
 
 import panelflow as pf
-from panelflow.cli import main
-from panelflow.outline import Outline
+from panelflow.cli.main import main
+from panelflow.geometry.outline import Outline
 
 # Angles of attack for the mapped sections, degrees from the x-axis (-4 to 10 deg).
 MAPPED_ALPHAS_DEG = np.arange(-4.0, 10.5, 2.0)

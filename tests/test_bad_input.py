@@ -1,6 +1,6 @@
 """Bad input through the command line: one clear line on stderr, exit 1, nothing written.
 
-Each case is run in-process with :func:`panelflow.cli.main`. The contract checked for every
+Each case is run in-process with :func:`panelflow.cli.main.main`. The contract checked for every
 case: a non-zero exit code, exactly one line on stderr that starts with ``panelflow: error:``,
 names the file (and the line, for a bad line) or the option at fault, carries no traceback,
 and no output file (nor a temporary one) is left behind when ``-o`` was given. With
@@ -16,7 +16,7 @@ from typing import Callable
 import numpy as np
 import pytest
 
-from panelflow.cli import main
+from panelflow.cli.main import main
 from panelflow.errors import GeometryError, InputError, OutputError, PanelflowError
 
 QUICK = ("--panels", "40")  # the cases fail before or right after the solve; keep it short

@@ -1,4 +1,4 @@
-"""Plane wall and free surface by images (panelflow.boundaries).
+"""Plane wall and free surface by images (panelflow.flow.images).
 
 References
 ----------
@@ -27,12 +27,13 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow import boundaries as bnd
-from panelflow import influence, solver
+from panelflow.flow import images as bnd
+from panelflow.flow import influence
+from panelflow.flow import solver
 from panelflow.errors import GeometryError, InputError
-from panelflow.panelling import respline
-from panelflow.panels import Panels
-from panelflow.sections import circle, naca4
+from panelflow.geometry.panelling import respline
+from panelflow.geometry.panels import Panels
+from panelflow.geometry.sections import circle, naca4
 
 GEOMETRIES = Path(__file__).resolve().parent.parent / "geometries"
 
@@ -291,7 +292,7 @@ def test_field_near_plane_meets_the_plane_condition(wall):
     Free surface in the high-Froude-number limit: constant potential along it, so the velocity
     along the surface is the freestream's, u = 1 (Katz & Plotkin treat the same image pair).
     """
-    from panelflow.field import flow_field
+    from panelflow.flow.field import flow_field
 
     plane = bnd.Boundary.ground(0.3) if wall else bnd.Boundary.free_surface(0.3)
     result = bnd.analyse_with_boundary([naca4("2412")], [4.0], plane, n_panels=120,

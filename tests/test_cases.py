@@ -9,7 +9,7 @@ from pathlib import Path
 
 import pytest
 
-from panelflow.cases import KEYS, KeyLines, load_case, parse_angle_values, parse_case
+from panelflow.study.cases import KEYS, KeyLines, load_case, parse_angle_values, parse_case
 from panelflow.errors import InputError
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -292,7 +292,7 @@ def test_unreadable_case_files(tmp_path, data, fragment):
 
 
 def test_every_documented_key_is_in_the_module_docstring():
-    import panelflow.cases as cases
+    import panelflow.study.cases as cases
 
     doc = cases.__doc__
     for table, keys in KEYS.items():

@@ -1,4 +1,4 @@
-"""Cavitation number, inception criterion and inception speed (panelflow.cavitation).
+"""Cavitation number, inception criterion and inception speed (panelflow.conditions.cavitation).
 
 The worked values are hand arithmetic of sigma = (p_atm + rho g h - p_v) / (rho V^2 / 2) with
 g = 9.80665 m/s^2 (standard gravity, 3rd CGPM 1901 / ISO 80000-3) and p_atm = 101 325 Pa (the
@@ -14,9 +14,9 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow import cavitation as cav
+from panelflow.conditions import cavitation as cav
 from panelflow.errors import InputError
-from panelflow.sections import naca4
+from panelflow.geometry.sections import naca4
 
 FRONT_FOIL = Path(__file__).resolve().parent.parent / "geometries" / "tender_front_foil.dat"
 
@@ -95,7 +95,7 @@ def test_assess_without_speed():
 
 
 def test_assess_with_fluid_preset():
-    from panelflow import fluids
+    from panelflow.conditions import fluids
 
     sea = fluids.get_fluid("sea-water")
     res = cav.assess_in(front_foil(), 0.5, "sea-water", speed=10.0)

@@ -1,6 +1,6 @@
 """The command line run in-process: ``solve``, ``check`` and ``section`` on good input.
 
-Every test calls :func:`panelflow.cli.main` with an argument list and reads what it printed
+Every test calls :func:`panelflow.cli.main.main` with an argument list and reads what it printed
 (capsys), so the exit code, stdout and stderr are checked exactly as a user would see them.
 Bad input has its own module, tests/test_bad_input.py.
 """
@@ -20,7 +20,7 @@ import pytest
 
 from conftest import run, run_json
 
-from panelflow.readers import load_outlines
+from panelflow.geometry.readers import load_outlines
 
 REPO = Path(__file__).resolve().parents[1]
 GEOMETRIES = REPO / "geometries"

@@ -1,7 +1,7 @@
 """The newer command-line commands and options, run in-process like tests/test_cli.py.
 
 ``field``, ``compare`` and ``loads``, and ``solve`` with ``--plot``, ``--mach``, ``--depth``,
-``--ground`` / ``--free-surface`` and ``--flap``. Each test calls :func:`panelflow.cli.main`
+``--ground`` / ``--free-surface`` and ``--flap``. Each test calls :func:`panelflow.cli.main.main`
 with an argument list and reads what it printed (capsys) and what it wrote (tmp_path). Bad input
 follows the contract of tests/test_bad_input.py: exit 1, one line ``panelflow: error: ...`` on
 stderr, nothing on stdout and no file left behind; usage errors exit 2.
@@ -31,9 +31,9 @@ import pytest
 
 from conftest import run, run_json
 
-from panelflow.cli import main
-from panelflow.fluids import FLUIDS
-from panelflow.readers import load_outlines
+from panelflow.cli.main import main
+from panelflow.conditions.fluids import FLUIDS
+from panelflow.geometry.readers import load_outlines
 
 REPO = Path(__file__).resolve().parents[1]
 

@@ -1,4 +1,4 @@
-"""Compressibility corrections, critical Cp and critical Mach number (panelflow.compressibility).
+"""Compressibility corrections, critical Cp and critical Mach number (panelflow.conditions.compressibility).
 
 Sources
 -------
@@ -18,9 +18,9 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow import compressibility as cmp
+from panelflow.conditions import compressibility as cmp
 from panelflow.errors import InputError
-from panelflow.sections import naca4
+from panelflow.geometry.sections import naca4
 
 
 @functools.cache
@@ -119,7 +119,7 @@ def test_critical_mach_ordering_and_no_suction():
 def test_correct_at_zero_mach_reproduces_the_analysis():
     r = naca0012()
     c = cmp.correct(r, 0.0)
-    # 1e-12: the same Simpson integrals as panelflow.surface, summed in another order
+    # 1e-12: the same Simpson integrals as panelflow.flow.surface, summed in another order
     np.testing.assert_allclose(c.cl, r.cl, atol=1e-12)
     np.testing.assert_allclose(c.cl_pressure, r.fine.cl_pressure, atol=1e-12)
     np.testing.assert_allclose(c.cd_pressure, r.fine.cd_pressure, atol=1e-12)

@@ -16,7 +16,7 @@ import pytest
 from exact import circle_cp
 
 import panelflow as pf
-from panelflow.sections import circle
+from panelflow.geometry.sections import circle
 
 PANEL_COUNTS = np.array([100, 200, 400])
 REQUIRED_ORDER = 1.5

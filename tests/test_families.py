@@ -13,7 +13,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from panelflow.errors import InputError
-from panelflow.families import (
+from panelflow.geometry.families import (
     MAX_MEMBERS,
     expand_arguments,
     expand_family,
@@ -21,7 +21,7 @@ from panelflow.families import (
     is_family,
     is_pattern,
 )
-from panelflow.sections import parse_spec
+from panelflow.geometry.sections import parse_spec
 
 
 @pytest.mark.parametrize("text, members", [

@@ -1,4 +1,4 @@
-"""The flow field (panelflow.field) against exact potential flows, and its basic invariants.
+"""The flow field (panelflow.flow.field) against exact potential flows, and its basic invariants.
 
 References (each named again beside its check)
 ----------------------------------------------
@@ -22,8 +22,8 @@ from conftest import exact_outline
 from exact import KarmanTrefftz, circle_field
 
 import panelflow as pf
-from panelflow import field as fld
-from panelflow.sections import circle, naca4
+from panelflow.flow import field as fld
+from panelflow.geometry.sections import circle, naca4
 
 N_PANELS = 200
 GEOMETRIES = Path(__file__).resolve().parent.parent / "geometries"

@@ -13,11 +13,11 @@ import pytest
 
 import panelflow as pf
 from panelflow.errors import InputError, OutputError
-from panelflow.field import FlowField, flow_field, grid_points
-from panelflow.field_io import (FIELD_COLUMNS, FIELD_WRITERS, check_field_outputs,
+from panelflow.flow.field import FlowField, flow_field, grid_points
+from panelflow.output.field_files import (FIELD_COLUMNS, FIELD_WRITERS, check_field_outputs,
                                 read_points_csv, write_field)
-from panelflow.sections import naca4
-from panelflow.writers import CAUTION
+from panelflow.geometry.sections import naca4
+from panelflow.output.writers import CAUTION
 
 ALPHAS = [4.0, 8.0]
 NX, NY = 21, 15

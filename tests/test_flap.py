@@ -1,4 +1,4 @@
-"""Flap deflection (panelflow.flap) against thin-airfoil flap theory and geometric checks.
+"""Flap deflection (panelflow.geometry.flap) against thin-airfoil flap theory and geometric checks.
 
 Thin-airfoil theory of a flapped section (Glauert; Abbott & von Doenhoff, *Theory of Wing
 Sections*, ch. 5; Anderson, *Fundamentals of Aerodynamics*, ch. 4): a flap of deflection delta
@@ -16,9 +16,9 @@ import pytest
 from exact import thin_airfoil_alpha_l0
 
 import panelflow as pf
-from panelflow import flap
+from panelflow.geometry import flap
 from panelflow.errors import GeometryError, InputError
-from panelflow.sections import circle, naca4
+from panelflow.geometry.sections import circle, naca4
 
 N_PANELS = 200
 

@@ -26,7 +26,7 @@ import math
 import pytest
 
 from panelflow.errors import InputError
-from panelflow.fluids import (FLUIDS, UNITS, Conditions, Fluid, get_fluid, resolve_fluid,
+from panelflow.conditions.fluids import (FLUIDS, UNITS, Conditions, Fluid, get_fluid, resolve_fluid,
                               user_fluid)
 
 # ---------------------------------------------------------------- independent reference formulas

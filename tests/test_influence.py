@@ -10,7 +10,7 @@ import numpy as np
 import pytest
 from scipy import integrate
 
-from panelflow import influence
+from panelflow.flow import influence
 
 RNG = np.random.default_rng(7)
 Z1 = np.array([0.3 - 0.2j, -1.0 + 0.5j, 2.0 + 1.0j])

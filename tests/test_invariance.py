@@ -19,9 +19,9 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 import panelflow as pf
-from panelflow.influence import vortex_velocity
-from panelflow.outline import Outline
-from panelflow.sections import ellipse, naca4
+from panelflow.flow.influence import vortex_velocity
+from panelflow.geometry.outline import Outline
+from panelflow.geometry.sections import ellipse, naca4
 
 ALPHAS_DEG = np.array([-3.0, 0.0, 5.0, 9.0])
 FEW = settings(max_examples=20, deadline=None)
@@ -70,7 +70,7 @@ def velocity(result, i, points):
     bodies only: a blunt body's base source is not included).
 
     u - i v = e^{-i alpha} + sum over panels of the linear-vortex influence per unit nodal
-    strength (panelflow.influence.vortex_velocity) times the nodal vorticity.
+    strength (panelflow.flow.influence.vortex_velocity) times the nodal vorticity.
     """
     p = result.fine.panels
     assert len(p.base_body) == 0

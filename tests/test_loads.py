@@ -21,10 +21,10 @@ from hypothesis import strategies as st
 
 import panelflow as pf
 from panelflow.errors import InputError
-from panelflow.fluids import Conditions, get_fluid, user_fluid
-from panelflow.loads import (EQUILIBRIUM_TOLERANCE, LOAD_CAUTIONS, StructuralNodes, read_nodes,
+from panelflow.conditions.fluids import Conditions, get_fluid, user_fluid
+from panelflow.loads.section import (EQUILIBRIUM_TOLERANCE, LOAD_CAUTIONS, StructuralNodes, read_nodes,
                              section_loads, transfer_to_nodes)
-from panelflow.sections import ellipse, naca4
+from panelflow.geometry.sections import ellipse, naca4
 
 GEOMETRIES = Path(__file__).resolve().parent.parent / "geometries"
 ALPHAS = (0.0, 4.0)

@@ -18,9 +18,9 @@ import pytest
 
 import panelflow as pf
 from panelflow.errors import OutputError
-from panelflow.fluids import Conditions, get_fluid
-from panelflow.loads import LOAD_CAUTIONS, StructuralNodes, equilibrium_text, section_loads
-from panelflow.loads_io import (LOAD_WRITERS, check_load_outputs, companion_path, load_nodes,
+from panelflow.conditions.fluids import Conditions, get_fluid
+from panelflow.loads.section import LOAD_CAUTIONS, StructuralNodes, equilibrium_text, section_loads
+from panelflow.output.load_files import (LOAD_WRITERS, check_load_outputs, companion_path, load_nodes,
                                 write_loads)
 
 ROOT = Path(__file__).resolve().parent.parent

@@ -8,8 +8,8 @@ after normalisation, so the same trailing-edge kind, gap and chord.
 import numpy as np
 import pytest
 
-from panelflow.outline import BLUNT, SHARP, SMOOTH, Outline
-from panelflow.sections import naca4
+from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline
+from panelflow.geometry.sections import naca4
 
 
 def _le_start(points: np.ndarray, closed: bool) -> np.ndarray:

@@ -15,9 +15,9 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow import plots
-from panelflow.field import flow_field, grid_points
-from panelflow.writers import CAUTION
+from panelflow.output import figures as plots
+from panelflow.flow.field import flow_field, grid_points
+from panelflow.output.writers import CAUTION
 
 # Coarse panelling keeps each analysis to a few milliseconds; the figures do not depend on it.
 N_PANELS = 60
@@ -270,14 +270,14 @@ def test_field_alpha_index(field, foil):
 
 # ------------------------------------------------------------------------- import hygiene
 def test_core_imports_do_not_load_matplotlib():
-    code = ("import sys, panelflow, panelflow.analysis, panelflow.cli, panelflow.plots; "
+    code = ("import sys, panelflow, panelflow.analysis.inviscid, panelflow.cli.main, panelflow.output.figures; "
             "assert 'matplotlib' not in sys.modules, 'matplotlib imported'")
     subprocess.run([sys.executable, "-c", code], check=True)
 
 
 def test_figures_do_not_load_pyplot(tmp_path):
     # a figure built and saved goes through the Agg canvas only: no pyplot, no global figures
-    code = ("import sys, panelflow as pf; from panelflow import plots; "
+    code = ("import sys, panelflow as pf; from panelflow.output import figures as plots; "
             "a = pf.analyse(pf.load_outlines('naca0012'), 2.0, n_panels=40); "
             "plots.surface_cp_figure(a, sys.argv[1]); "
             "assert 'matplotlib.pyplot' not in sys.modules, 'pyplot imported'")

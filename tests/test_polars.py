@@ -13,10 +13,10 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow import plots
+from panelflow.output import figures as plots
 from panelflow.errors import InputError, OutputError
-from panelflow.polars import POLAR_COLUMNS, Polar, Table, polar, read_table, tidy_table, write_table
-from panelflow.writers import polar_rows as writer_rows
+from panelflow.output.tables import POLAR_COLUMNS, Polar, Table, polar, read_table, tidy_table, write_table
+from panelflow.output.writers import polar_rows as writer_rows
 
 N_PANELS = 60  # coarse: a few milliseconds per analysis; the checks do not depend on it
 ANGLES = [-2.0, 0.0, 2.0, 4.0, 6.0]

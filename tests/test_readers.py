@@ -8,9 +8,9 @@ import numpy as np
 import pytest
 
 from panelflow.errors import GeometryError, InputError, OutputError
-from panelflow.readers import (READERS, load_outlines, read_outline_mesh, read_outline_table,
+from panelflow.geometry.readers import (READERS, load_outlines, read_outline_mesh, read_outline_table,
                                register_reader, write_outline_table)
-from panelflow.sections import naca4
+from panelflow.geometry.sections import naca4
 
 ROOT = Path(__file__).resolve().parent.parent
 # Written with 10 decimals, so read-back points agree to 1e-10 (rounding of the text).
@@ -426,7 +426,7 @@ def test_write_unwritable_folder(tmp_path, monkeypatch):
     def refuse(*args, **kwargs):
         raise PermissionError(13, "Permission denied")
 
-    monkeypatch.setattr("panelflow.writers._temporary", refuse)
+    monkeypatch.setattr("panelflow.files._temporary", refuse)
     with pytest.raises(OutputError, match="cannot write.*Permission denied"):
         write_outline_table(naca4("0012"), tmp_path / "x.dat")
     assert list(tmp_path.iterdir()) == []
@@ -436,7 +436,7 @@ def test_write_no_hard_links_falls_back(tmp_path, monkeypatch):
     def no_link(src, dst):
         raise OSError(1, "Operation not permitted")
 
-    monkeypatch.setattr("panelflow.writers.os.link", no_link)
+    monkeypatch.setattr("panelflow.files.os.link", no_link)
     path = write_outline_table(naca4("0012"), tmp_path / "y.dat")
     assert [p.name for p in tmp_path.iterdir()] == ["y.dat"]
     assert path.read_text().startswith("naca0012\n")

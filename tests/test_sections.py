@@ -6,7 +6,7 @@ from scipy.integrate import quad
 from scipy.optimize import brentq
 
 from panelflow.errors import InputError
-from panelflow.sections import (_MEAN_LINES_5, circle, ellipse, joukowski, karman_trefftz, naca4,
+from panelflow.geometry.sections import (_MEAN_LINES_5, circle, ellipse, joukowski, karman_trefftz, naca4,
                                 naca5, parse_spec)
 
 

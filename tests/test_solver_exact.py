@@ -15,8 +15,8 @@ import pytest
 from exact import circle_cp, ellipse_cm, ellipse_surface_speed
 
 import panelflow as pf
-from panelflow.analysis import ORDER, ROUND_OFF, SAFETY_FACTOR
-from panelflow.sections import circle, ellipse
+from panelflow.analysis.inviscid import ORDER, ROUND_OFF, SAFETY_FACTOR
+from panelflow.geometry.sections import circle, ellipse
 
 N_PANELS = 200
 SMOOTH_ALPHAS_DEG = np.array([0.0, 10.0, 33.0, -25.0])

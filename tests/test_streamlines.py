@@ -1,4 +1,4 @@
-"""Streamlines (panelflow.streamlines) against exact flows and Euler's equation.
+"""Streamlines (panelflow.flow.streamlines) against exact flows and Euler's equation.
 
 References (each named again beside its check)
 ----------------------------------------------
@@ -28,10 +28,10 @@ from conftest import exact_outline
 from exact import KarmanTrefftz, circle_field
 
 import panelflow as pf
-from panelflow import field as fld
-from panelflow import streamlines as sl
+from panelflow.flow import field as fld
+from panelflow.flow import streamlines as sl
 from panelflow.errors import InputError
-from panelflow.sections import circle, naca4
+from panelflow.geometry.sections import circle, naca4
 
 N_PANELS = 200
 CIRCLE_WINDOW = (-3.0, 3.0, -2.0, 2.0)

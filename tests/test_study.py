@@ -19,10 +19,10 @@ import numpy as np
 import pytest
 
 import panelflow as pf
-from panelflow.cases import load_case
+from panelflow.study.cases import load_case
 from panelflow.errors import InputError, OutputError
-from panelflow.polars import POLAR_COLUMNS, read_table, tidy_table
-from panelflow.study import (
+from panelflow.output.tables import POLAR_COLUMNS, read_table, tidy_table
+from panelflow.study.runner import (
     MANIFEST_NAME,
     BodySource,
     SectionTask,
@@ -205,8 +205,8 @@ def test_progress_bar_only_when_asked_or_on_a_terminal(tasks, capsys, progress, 
 
 
 def test_mach_and_depth_columns(tasks):
-    from panelflow.cavitation import assess_in
-    from panelflow.compressibility import correct
+    from panelflow.conditions.cavitation import assess_in
+    from panelflow.conditions.compressibility import correct
 
     t = SectionTask("m", (BodySource("naca2412"),), ANGLES, n_panels=N_PANELS, mach=0.4,
                     depth=0.5, fluid="sea-water", speed=9.0)
@@ -343,7 +343,7 @@ def test_manifest_hash_follows_the_input(first_run):
 def test_existing_outputs_are_not_replaced(first_run, monkeypatch):
     case_dir, report = first_run
     stamp = {p: p.stat().st_mtime_ns for p in report.written}
-    import panelflow.study as study
+    import panelflow.study.runner as study
 
     def no_solving(*args, **kwargs):
         raise AssertionError("solved before the output check")

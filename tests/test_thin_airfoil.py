@@ -18,7 +18,7 @@ import pytest
 from exact import naca4_camber_slope, thin_airfoil_alpha_l0, thin_airfoil_cm_quarter
 
 import panelflow as pf
-from panelflow.sections import naca4
+from panelflow.geometry.sections import naca4
 
 N_PANELS = 200
 CAMBERED = [  # digits, max camber m, its position p (NACA Report 460 designation)

@@ -1,0 +1,293 @@
+"""Analysis: outlines in, surface results at any number of angles out, each with an error estimate.
+
+This is the library's main entry point. It composes the one-way chain
+
+    outlines -> check -> panelling -> panels -> factorised system -> surface solution
+
+twice, at ``n`` and about ``n/2`` panels, and estimates the discretisation error of Cl and Cm
+from the difference (Richardson extrapolation with a safety factor, Roache's grid convergence
+index): ``error = F * |f_n - f_n/2| / (r^p - 1)`` with ``r`` the panel-count ratio, ``p = 2`` the
+order of the method (measured in tests/test_convergence.py) and ``F = 3``, Roache's factor for a
+two-grid study (P. J. Roache, Verification and Validation in Computational Science and
+Engineering, 1998), floored at round-off level.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from panelflow.geometry import check
+from panelflow.errors import InputError
+from panelflow.geometry.panelling import panel_outline
+from panelflow.geometry.panels import Panels
+from panelflow.flow.solver import System, factorise
+from panelflow.flow.surface import ChordLine, Coefficients, SurfaceSolution, coefficients, evaluate
+
+DEFAULT_PANELS = 200
+ORDER = 2.0
+SAFETY_FACTOR = 3.0
+ROUND_OFF = 1e-10
+
+
+@dataclass(frozen=True)
+class AngleResult:
+    """All reported quantities of one angle of attack (totals and per body).
+
+    Coefficients use the reference chord; moments are about the reference point, positive
+    nose-up. ``surface`` holds, per body, the node coordinates and their Cp.
+    """
+
+    alpha_deg: float
+    cl: float
+    cl_pressure: float
+    cl_circulation: float
+    cd_pressure: float
+    cm: float
+    cl_error_estimate: float
+    cm_error_estimate: float
+    x_center_of_pressure: float
+    bodies: tuple = field(repr=False)
+
+    def __repr__(self) -> str:
+        return (f"AngleResult(alpha={self.alpha_deg:g} deg, cl={self.cl:.5f} "
+                f"+/- {self.cl_error_estimate:.1e}, cm={self.cm:.5f} +/- "
+                f"{self.cm_error_estimate:.1e}, cd_pressure={self.cd_pressure:.1e})")
+
+
+@dataclass(frozen=True)
+class BodyAngleResult:
+    """One body at one angle: pressure-integrated coefficients, extremes and surface Cp."""
+
+    name: str
+    cl: float
+    cd_pressure: float
+    cm: float
+    cl_circulation: float
+    cp_min: float
+    x_cp_min: float
+    xy_cp_min: tuple
+    stagnation_xy: tuple
+    x_stagnation: float
+    cp_base: float
+    x: np.ndarray = field(repr=False)
+    y: np.ndarray = field(repr=False)
+    cp: np.ndarray = field(repr=False)
+
+
+def _error(weights, fine_units, coarse_units, ratio):
+    """Richardson estimate bounded component by component on the angle basis.
+
+    A coefficient is a fixed combination of a few angle-independent components (see
+    :func:`~panelflow.flow.surface.unit_coefficients`); summing the absolute changes of the
+    components keeps the estimate from collapsing at the angle where the changes cancel.
+    """
+    diff = np.abs(np.asarray(fine_units) - np.asarray(coarse_units))
+    est = SAFETY_FACTOR * (np.abs(weights) @ diff) / (ratio**ORDER - 1.0)
+    return np.maximum(est, ROUND_OFF)
+
+
+@dataclass(frozen=True)
+class Analysis:
+    """Solution of one geometry at several angles, with its discretisation error estimate.
+
+    Attributes
+    ----------
+    outlines : tuple of Outline
+    panellings : tuple of Panelling
+    fine : SurfaceSolution
+        Results at the requested panel count (these are the reported numbers).
+    coarse : Coefficients or None
+        Coefficients at about half the panels (for the error estimate); None when switched off.
+    """
+
+    outlines: tuple
+    panellings: tuple
+    fine: SurfaceSolution
+    coarse: Coefficients | None = field(repr=False)
+    cl_error_estimate: np.ndarray = field(init=False, repr=False)
+    cm_error_estimate: np.ndarray = field(init=False, repr=False)
+
+    def __post_init__(self):
+        if self.coarse is None:
+            cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
+        else:
+            f, c = self.fine, self.coarse
+            ratio = f.panels.n_panels / c.n_panels
+            a = np.radians(f.alpha_deg)
+            ca, sa = np.cos(a), np.sin(a)
+            cl_err = _error(np.stack([ca, sa], axis=1), f.unit_cl, c.unit_cl, ratio)
+            cm_w = np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1)
+            cm_err = _error(cm_w, f.unit_cm, c.unit_cm, ratio)
+        object.__setattr__(self, "cl_error_estimate", cl_err)
+        object.__setattr__(self, "cm_error_estimate", cm_err)
+
+    @property
+    def alpha_deg(self) -> np.ndarray:
+        return self.fine.alpha_deg
+
+    @property
+    def chord(self) -> float:
+        return self.fine.chord_line.length
+
+    @property
+    def reference_point(self) -> np.ndarray:
+        return self.fine.reference_point
+
+    @property
+    def n_panels(self) -> int:
+        return self.fine.panels.n_panels
+
+    @property
+    def cl(self) -> np.ndarray:
+        return self.fine.cl
+
+    @property
+    def cm(self) -> np.ndarray:
+        return self.fine.cm
+
+    @property
+    def cd_pressure(self) -> np.ndarray:
+        return self.fine.cd_pressure
+
+    def __len__(self) -> int:
+        return len(self.alpha_deg)
+
+    def __getitem__(self, i: int) -> AngleResult:
+        f = self.fine
+        p = f.panels
+        cl_err, cm_err = self.cl_error_estimate[i], self.cm_error_estimate[i]
+        bodies = []
+        chord = self.chord
+        for k in range(p.n_bodies):
+            nodes = p.body_nodes(k)
+            xy = p.nodes[nodes]
+            j = int(f.cp_min_node[i, k])
+            zs = f.stagnation[i, k]
+            bodies.append(BodyAngleResult(
+                name=p.names[k], cl=float(f.body_cl[i, k]), cd_pressure=float(f.body_cd[i, k]),
+                cm=float(f.body_cm[i, k]),
+                cl_circulation=float(-2.0 * f.body_circulation[i, k] / chord),
+                cp_min=float(f.cp_min[i, k]), x_cp_min=float(f.x_cp_min[i, k]),
+                xy_cp_min=(float(p.nodes[j, 0]), float(p.nodes[j, 1])),
+                stagnation_xy=(float(zs.real), float(zs.imag)),
+                x_stagnation=float(f.x_stagnation[i, k]), cp_base=float(f.cp_base[i, k]),
+                x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes]))
+        return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
+                           float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),
+                           float(cl_err), float(cm_err), float(f.x_cp[i]), tuple(bodies))
+
+    def __iter__(self):
+        return (self[i] for i in range(len(self)))
+
+
+def default_reference(outlines) -> tuple[ChordLine, np.ndarray]:
+    """Reference chord line (the main, i.e. first, body's) and its quarter-chord point."""
+    main = outlines[0]
+    chord = ChordLine(main.leading_edge, main.trailing_edge.point.copy())
+    return chord, main.chord_point(0.25)
+
+
+def checked_inputs(outlines, alpha_deg) -> tuple[tuple, np.ndarray]:
+    """The outlines as a tuple and the angles as a 1-D array, or InputError."""
+    outlines = tuple(outlines)
+    if not outlines:
+        raise InputError("no outline given")
+    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
+    if alpha.ndim != 1 or not np.all(np.isfinite(alpha)):
+        raise InputError("angles of attack must be finite numbers")
+    return outlines, alpha
+
+
+def _reference(outlines, chord_line):
+    if chord_line is None:
+        return default_reference(outlines)
+    le, te = (np.asarray(p, float) for p in chord_line)
+    line = ChordLine(le, te)
+    if not line.length > 0:
+        raise InputError("the reference chord line has zero length")
+    return line, le + 0.25 * (te - le)
+
+
+def build(outlines, n_panels: int | None = DEFAULT_PANELS):
+    """Check the outlines, panel them and factorise the system.
+
+    Returns
+    -------
+    (panellings, system) : tuple of Panelling, System
+    """
+    outlines = tuple(outlines)
+    check.validate(outlines)
+    panellings = tuple(panel_outline(o, n_panels) for o in outlines)
+    return panellings, factorise(Panels.from_panellings(panellings))
+
+
+def _coarse_system(panellings) -> System:
+    return factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]))
+
+
+def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
+            error_estimate: bool = True, chord_line=None) -> Analysis:
+    """Solve the flow around one or more bodies at any number of angles of attack.
+
+    Parameters
+    ----------
+    outlines : sequence of Outline
+        The bodies; the first is the main body whose chord is the reference length.
+    alpha_deg : float or array_like
+        Angles of attack in degrees from the input's x-axis (an outline drawn at incidence keeps
+        it).
+    n_panels : int or None
+        Panels per body on a smooth spline through the points; None keeps the given points.
+    reference_point : (x, y), optional
+        Moment reference point; default the quarter chord of the main body's chord line.
+    error_estimate : bool
+        Solve again at half the panels to estimate the discretisation error of Cl and Cm.
+    chord_line : (leading_edge, trailing_edge), optional
+        Reference chord line; default the main body's (a deflected flap's section uses the
+        undeflected chord). The default reference point is its quarter chord.
+
+    Returns
+    -------
+    Analysis
+    """
+    outlines, alpha = checked_inputs(outlines, alpha_deg)
+    chord, quarter = _reference(outlines, chord_line)
+    ref = quarter if reference_point is None else np.asarray(reference_point, float)
+    panellings, system = build(outlines, n_panels)
+    fine = evaluate(system, alpha, chord, ref)
+    coarse = (coefficients(_coarse_system(panellings), alpha, chord, ref) if error_estimate
+              else None)
+    return Analysis(outlines, panellings, fine, coarse)
+
+
+def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,
+                 chord_line=None) -> float:
+    """Angle of attack in degrees at which the total lift coefficient equals ``target_cl``.
+
+    The circulation lift is exactly ``A cos(alpha) + B sin(alpha)`` (superposition of the two
+    unit solutions), so the angle follows in closed form; of the two roots the one nearer zero
+    is returned.
+
+    Raises
+    ------
+    InputError
+        When no angle gives that lift (no body with a trailing edge, or ``|target|`` beyond the
+        peak of the sinusoid).
+    """
+    outlines = tuple(outlines)
+    chord, quarter = _reference(outlines, chord_line)
+    _, system = build(outlines, n_panels)
+    unit = evaluate(system, [0.0, 90.0], chord, quarter).cl
+    a, b = float(unit[0]), float(unit[1])
+    amp = np.hypot(a, b)
+    if amp < 1e-12 or abs(target_cl) > amp:
+        raise InputError(f"no angle of attack gives cl = {target_cl:g} (largest |cl| is "
+                         f"{amp:.4g}; a body without a trailing edge carries no lift)")
+    # a cos x + b sin x = amp sin(x + phi)
+    phi = np.arctan2(a, b)
+    base = np.arcsin(target_cl / amp)
+    roots = np.array([base - phi, np.pi - base - phi])
+    roots = (roots + np.pi) % (2.0 * np.pi) - np.pi
+    return float(np.degrees(roots[np.argmin(np.abs(roots))]))

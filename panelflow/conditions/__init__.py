@@ -1,0 +1,1 @@
+"""Operating conditions: fluids, compressibility corrections and cavitation margins."""

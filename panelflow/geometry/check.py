@@ -1,0 +1,132 @@
+"""Geometry check of outlines with shapely: what ``panelflow check`` reports.
+
+An outline is usable when its loop is closed (true by construction of :class:`Outline`), simple
+(no self-intersection), encloses a non-zero area, has enough points, and does not overlap any other
+body of the same analysis.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import re
+
+import numpy as np
+import shapely
+from shapely.geometry import LinearRing, Polygon
+from shapely.validation import explain_validity
+
+from panelflow.errors import GeometryError
+from panelflow.geometry.outline import MIN_POINTS, Outline
+
+
+@dataclass(frozen=True)
+class OutlineReport:
+    """Facts about one outline, as printed by ``panelflow check``.
+
+    Attributes
+    ----------
+    name, source : str
+    n_points : int
+    trailing_edge : str
+        ``"sharp"``, ``"blunt"`` or ``"none"``.
+    trailing_edge_gap : float
+    trailing_edge_angle_deg : float
+        Included angle between the surfaces at the trailing edge.
+    leading_edge, trailing_edge_point : tuple of float
+    chord : float
+    chord_angle_deg : float
+        Incidence of the chord line to the x-axis, positive nose-up.
+    area : float
+    max_thickness : float
+        Largest thickness normal to the chord line, as a fraction of the chord.
+    problems : tuple of str
+        Empty when the outline is usable.
+    """
+
+    name: str
+    source: str
+    n_points: int
+    trailing_edge: str
+    trailing_edge_gap: float
+    trailing_edge_angle_deg: float
+    leading_edge: tuple
+    trailing_edge_point: tuple
+    chord: float
+    chord_angle_deg: float
+    area: float
+    max_thickness: float
+    problems: tuple
+
+    @property
+    def ok(self) -> bool:
+        return not self.problems
+
+
+def _polygon(outline: Outline) -> Polygon:
+    return Polygon(outline.polygon)
+
+
+def _thickness(outline: Outline) -> float:
+    """Largest extent normal to the chord line at one chordwise station, over the chord."""
+    le, te = outline.leading_edge, outline.trailing_edge.point
+    c = outline.chord
+    e = (te - le) / c
+    n = 2.0 * c * np.array([-e[1], e[0]])
+    stations = le + np.linspace(0.0, c, 201)[1:-1, None] * e
+    cuts = shapely.intersection(_polygon(outline), shapely.linestrings(
+        np.stack([stations - n, stations + n], axis=1)))
+    return float(np.max(shapely.length(cuts))) / c
+
+
+def _problems(outline: Outline) -> list[str]:
+    problems = []
+    ring = LinearRing(outline.polygon)
+    if len(outline.polygon) < MIN_POINTS - 1:
+        problems.append(f"only {len(outline.polygon)} distinct points; at least {MIN_POINTS} needed")
+    if not ring.is_simple:
+        # explain_validity names the first crossing as "Self-intersection[x y]"
+        why = explain_validity(Polygon(outline.polygon))
+        where = re.search(r"\[([-+\d.eE]+) ([-+\d.eE]+)\]", why)
+        problems.append("the outline crosses itself" + (
+            f" near ({float(where[1]):.6g}, {float(where[2]):.6g})" if where else ""))
+    area = abs(outline.area)
+    if area <= 1e-12 * outline.chord**2:
+        problems.append("the outline encloses no area")
+    return problems
+
+
+def inspect(outline: Outline) -> OutlineReport:
+    """Report on one outline; problems are listed rather than raised."""
+    problems = _problems(outline)
+    te = outline.trailing_edge
+    area = abs(outline.area)
+    thick = _thickness(outline) if not problems else float("nan")
+    return OutlineReport(outline.name, outline.source, len(outline.points) - 1, te.kind, te.gap,
+                         te.included_angle_deg, tuple(map(float, outline.leading_edge)),
+                         tuple(map(float, te.point)), outline.chord, outline.chord_angle_deg,
+                         area, thick, tuple(problems))
+
+
+def overlaps(outlines) -> list[str]:
+    """Messages for every pair of bodies that touch or overlap."""
+    polys = [_polygon(o) for o in outlines]
+    out = []
+    for i in range(len(polys)):
+        for j in range(i + 1, len(polys)):
+            if polys[i].is_valid and polys[j].is_valid and polys[i].intersects(polys[j]):
+                a, b = outlines[i], outlines[j]
+                out.append(f"bodies {a.name!r} ({a.source or 'built in'}) and {b.name!r} "
+                           f"({b.source or 'built in'}) overlap or touch")
+    return out
+
+
+def validate(outlines) -> None:
+    """Raise :class:`GeometryError` naming the first problem of any outline or pair of bodies."""
+    for o in outlines:
+        problems = _problems(o)
+        if problems:
+            raise GeometryError(f"{o.label}: {problems[0]}")
+    msgs = overlaps(outlines)
+    if msgs:
+        raise GeometryError(msgs[0])

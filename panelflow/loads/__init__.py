@@ -1,0 +1,1 @@
+"""Loads: dimensional pressures and forces from a solved section, for structural models."""

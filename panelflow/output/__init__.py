@@ -1,0 +1,1 @@
+"""Output: result files (JSON, CSV, mesh formats), text reports and figures."""

@@ -1,0 +1,207 @@
+"""Readable text reports: the tables ``panelflow solve`` and ``panelflow check`` print.
+
+Only formatting lives here; the numbers come from :mod:`panelflow.analysis` and
+:mod:`panelflow.geometry.check`.
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+
+from panelflow.output.writers import CAUTION
+
+# Beyond these the attached-flow answer is doubtful for ordinary sections (common practice:
+# typical sections stall between about 10 and 16 degrees from zero lift, and a suction peak far
+# below Cp = -3 usually means leading-edge separation is near).
+_ALPHA_WARN_DEG = 10.0
+_CP_MIN_WARN = -3.0
+
+
+def _num(v, fmt):
+    return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
+
+
+def decimals(errors) -> int:
+    """Decimals that reach the digit the largest error estimate affects (3 to 8)."""
+    finite = [e for e in errors if math.isfinite(e) and e > 0]
+    if not finite:
+        return 5
+    return min(8, max(3, -int(math.floor(math.log10(max(finite))))))
+
+
+def model_notes(analysis) -> list[str]:
+    """Warnings on where the inviscid model is likely to stop being valid."""
+    notes = []
+    for r in analysis:
+        main = r.bodies[0]
+        flags = []
+        if abs(r.alpha_deg) > _ALPHA_WARN_DEG:
+            flags.append(f"|alpha| above {_ALPHA_WARN_DEG:g} deg: real sections may be near stall")
+        if main.cp_min < _CP_MIN_WARN:
+            flags.append(f"suction peak Cp {main.cp_min:.2f}: leading-edge separation likely")
+        if flags:
+            notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
+    return notes
+
+
+def solve_table(analysis) -> str:
+    """Per-angle table of totals, then per-body lines when there is more than one body."""
+    lines = []
+    o = analysis.outlines
+    names = ", ".join(b.name for b in o)
+    ref = analysis.reference_point
+    lines.append(f"bodies: {names}")
+    lines.append(f"panels: {', '.join(str(p.n_panels) for p in analysis.panellings)}   "
+                 f"chord {analysis.chord:.6g}   moments about ({ref[0]:.6g}, {ref[1]:.6g}), "
+                 "nose-up positive")
+    head = (f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} "
+            f"{'cl_p':>9} {'x_cp':>7} {'cp_min':>8} {'at x/c':>7} {'stag x/c':>8}")
+    lines.append(head)
+    # one number of decimals per column, down to the digit the largest error estimate affects
+    dl = decimals(analysis.cl_error_estimate)
+    dm = decimals(analysis.cm_error_estimate)
+    for r in analysis:
+        main = r.bodies[0]
+        lines.append(
+            f"{r.alpha_deg:7.2f} {r.cl:10.{dl}f} "
+            f"{_num(r.cl_error_estimate, '8.1e')} {r.cm:10.{dm}f} "
+            f"{_num(r.cm_error_estimate, '8.1e')} {r.cd_pressure:9.1e} {r.cl_pressure:9.5f} "
+            f"{_num(r.x_center_of_pressure, '7.4f')} {main.cp_min:8.4f} "
+            f"{_num(main.x_cp_min, '7.4f')} {_num(main.x_stagnation, '8.4f')}")
+    if len(o) > 1:
+        lines.append("")
+        lines.append(f"{'alpha':>7} {'body':<16} {'cl':>9} {'cm':>9} {'cd_p':>9} {'cp_min':>8} "
+                     f"{'cp_base':>8}")
+        for r in analysis:
+            for b in r.bodies:
+                lines.append(f"{r.alpha_deg:7.2f} {b.name[:16]:<16} {b.cl:9.5f} {b.cm:9.5f} "
+                             f"{b.cd_pressure:9.1e} {b.cp_min:8.4f} {_num(b.cp_base, '8.4f')}")
+    else:
+        cpb = [r.bodies[0].cp_base for r in analysis]
+        if not all(math.isnan(v) for v in cpb):
+            lines.append("base pressure of the blunt trailing edge: "
+                         + ", ".join(f"{v:.4f}" for v in cpb))
+    lines.append("")
+    if any(o.kind == "blunt" for o in o):
+        lines.append("blunt trailing edge: the base carries the pressure of the flow leaving its "
+                     "corners, above the")
+        lines.append("  (viscous) real base pressure, so there cd_p is no drag estimate and no "
+                     "accuracy check")
+    lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
+    lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
+                 "+/-: discretisation error estimate")
+    for note in model_notes(analysis):
+        lines.append("note: " + note)
+    lines.append("caution: " + CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def check_table(reports, overlap_messages) -> str:
+    """The ``panelflow check`` report."""
+    lines = []
+    for rep in reports:
+        lines.append(f"{rep.name}  ({rep.source or 'built in'})")
+        lines.append(f"  points           {rep.n_points}")
+        te = rep.trailing_edge
+        kind = {"sharp": "sharp", "blunt": "blunt (base)", "none": "none (smooth body)"}[te]
+        lines.append(f"  trailing edge    {kind}; gap {rep.trailing_edge_gap:.6g}; included angle "
+                     f"{rep.trailing_edge_angle_deg:.2f} deg")
+        lines.append(f"  leading edge     ({rep.leading_edge[0]:.6g}, {rep.leading_edge[1]:.6g})")
+        lines.append(f"  trailing edge at ({rep.trailing_edge_point[0]:.6g}, "
+                     f"{rep.trailing_edge_point[1]:.6g})")
+        lines.append(f"  chord            {rep.chord:.6g}; chord-line incidence "
+                     f"{rep.chord_angle_deg:.3f} deg (nose-up positive)")
+        lines.append(f"  thickness        {_num(100 * rep.max_thickness, '.2f')} % of chord; "
+                     f"area {rep.area:.6g}")
+        lines.append("  status           " + ("ok" if rep.ok else "; ".join(rep.problems)))
+    for msg in overlap_messages:
+        lines.append("problem: " + msg)
+    return "\n".join(lines) + "\n"
+
+
+def compare_table(analyses, labels) -> str:
+    """Cl, Cm, minimum Cp and its position for each case and angle (``panelflow compare``)."""
+    width = max(12, *(len(lb) for lb in labels))
+    lines = [f"{'case':<{width}} {'alpha':>7} {'cl':>9} {'+/-':>8} {'cm':>9} {'+/-':>8} "
+             f"{'cp_min':>8} {'at x/c':>7}"]
+    for label, a in zip(labels, analyses):
+        for r in a:
+            main = min(r.bodies, key=lambda b: b.cp_min)
+            lines.append(f"{label:<{width}} {r.alpha_deg:7.2f} {r.cl:9.5f} "
+                         f"{_num(r.cl_error_estimate, '8.1e')} {r.cm:9.5f} "
+                         f"{_num(r.cm_error_estimate, '8.1e')} {main.cp_min:8.4f} "
+                         f"{_num(main.x_cp_min, '7.4f')}")
+    lines.append("")
+    lines.append("moments about each case's own quarter chord, nose-up positive; cp_min over all "
+                 "bodies of the case")
+    lines.append("caution: " + CAUTION)
+    return "\n".join(lines) + "\n"
+
+
+def field_summary(flow, analysis) -> str:
+    """Short account of a computed field (``panelflow field``)."""
+    cp = flow.cp[0]
+    outside = ~flow.inside
+    alpha = analysis.alpha_deg[0]
+    lines = [f"field at alpha {alpha:g} deg: {len(flow.points)} points"
+             + (f" on a {flow.shape[1]} x {flow.shape[0]} grid" if len(flow.shape) == 2 else "")
+             + f", {int(flow.inside.sum())} inside bodies",
+             f"Cp from {np.nanmin(cp[outside]):.4f} to {np.nanmax(cp[outside]):.4f}; "
+             f"speed up to {np.nanmax(flow.speed[0][outside]):.4f} x freestream",
+             f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f}"]
+    if hasattr(analysis, "boundary"):
+        lines.append(f"near a {analysis.boundary.kind.replace('-', ' ')} at y = "
+                     f"{analysis.image.plane_y:.6g}: freestream along x, the bodies pitched by "
+                     f"{analysis.alpha_deg[0]:g} deg; points beyond the plane are masked")
+    return "\n".join(lines) + "\n"
+
+
+def compressibility_table(c) -> str:
+    """Compressibility-corrected coefficients and critical Mach numbers (``solve --mach``)."""
+    lines = ["", f"compressibility: {c.rule} at Mach {c.mach:g}; critical Cp* {c.cp_star:.4f} "
+             "(isentropic, NACA Report 1135)",
+             f"{'alpha':>7} {'cl':>9} {'+/-':>8} {'cm':>9} {'+/-':>8} {'cp_min':>8} "
+             f"{'M_crit':>7}"]
+    cp_min = np.min(np.asarray(c.cp_min).reshape(len(c.alpha_deg), -1), axis=1)
+    for i, a in enumerate(c.alpha_deg):
+        flag = "  sonic: model not valid" if c.supercritical[i] else ""
+        lines.append(f"{a:7.2f} {c.cl[i]:9.5f} {_num(float(c.cl_error_estimate[i]), '8.1e')} "
+                     f"{c.cm[i]:9.5f} {_num(float(c.cm_error_estimate[i]), '8.1e')} "
+                     f"{cp_min[i]:8.4f} {_num(float(c.critical_mach[i]), '7.4f')}{flag}")
+    lines += [f"warning: {w}" for w in c.warnings]
+    return "\n".join(lines) + "\n"
+
+
+def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
+    """Cavitation inception check at a running depth (``solve --depth``)."""
+    lines = ["", f"cavitation at {depth:g} m depth in {fluid}"
+             + (f", {speed:g} m/s: cavitation number {float(np.ravel(v.sigma)[0]):.4f}"
+                if speed else "") + " (inception when -Cp_min >= cavitation number)",
+             f"{'alpha':>7} {'-cp_min':>8} {'V_incep':>9}" + (f" {'margin':>8}" if speed else "")]
+    for i, a in enumerate(alpha_deg):
+        row = f"{a:7.2f} {-v.section_cp_min[i]:8.4f} {v.section_inception_speed[i]:7.2f} m/s"
+        if speed:
+            row += f" {v.margin[i]:8.3f}" + ("  cavitating" if v.cavitating[i] else "")
+        lines.append(row)
+    lines += [f"caution: {c}" for c in v.cautions]
+    return "\n".join(lines) + "\n"
+
+
+def boundary_table(b) -> str:
+    """Coefficients of bodies near a wall or free surface (``solve --ground/--free-surface``)."""
+    kind = b.boundary.kind.replace("_", " ").replace("-", " ")
+    lines = [f"bodies: {', '.join(b.body_names)} near a {kind} at y = {b.image.plane_y:.6g}; "
+             "freestream along x, each angle pitches the bodies nose-up about "
+             f"({b.pitch_point[0]:.6g}, {b.pitch_point[1]:.6g})",
+             f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} {'cl_p':>9} "
+             f"{'cp_min':>8} {'clearance':>9}"]
+    for i, a in enumerate(b.alpha_deg):
+        lines.append(f"{a:7.2f} {b.cl[i]:10.5f} {_num(float(b.cl_error_estimate[i]), '8.1e')} "
+                     f"{b.cm[i]:10.5f} {_num(float(b.cm_error_estimate[i]), '8.1e')} "
+                     f"{b.cd_pressure[i]:9.1e} {b.cl_pressure[i]:9.5f} "
+                     f"{np.min(b.cp_min[i]):8.4f} {b.clearance[i]:9.4g}")
+    lines += ["", "cl: lift from the generalised circulation (Lagally); cl_p: pressure-integrated"]
+    lines += [f"caution: {c}" for c in (*b.cautions, CAUTION)]
+    return "\n".join(lines) + "\n"

@@ -1,0 +1,402 @@
+"""Polars and tidy tables: one row per angle of one section, or per section and angle of a study.
+
+A :class:`Polar` holds one geometry's coefficients against the angle of attack, as arrays (the
+columns of :data:`POLAR_COLUMNS`, the same as ``panelflow solve -o polar.csv``, plus optional
+extra columns such as compressibility-corrected ones). A :class:`Table` is a *tidy* table: named
+columns of equal length, one observation per row, so a study of many sections at many angles is
+one table with a ``section`` column, ready for a spreadsheet or a data-frame library.
+
+Files (by extension, :data:`TABLE_WRITERS`), both written atomically and never replacing a file
+unless asked:
+
+``.csv``
+    ``#`` comment lines (panelflow version, caution, any notes), then a header row with the column
+    names and one line per row. Numbers are written with 10 significant digits (the solver's
+    accuracy is far coarser), text as is; an undefined number is an empty field.
+``.json``
+    ``{"format": "panelflow table", "panelflow_version", "caution", "notes", "columns",
+    "rows"}`` with ``rows`` a list of objects keyed by column name; numbers at full precision
+    (they read back bit for bit), undefined numbers ``null``.
+
+Both formats give the same text for the same numbers, so a re-run of a study can be compared
+file by file (and by its SHA-256 in the run manifest).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+
+import numpy as np
+
+from panelflow.version import __version__
+from panelflow.errors import InputError
+from panelflow.output.writers import CAUTION, POLAR_COLUMNS, atomic_write_text, check_outputs
+
+__all__ = ["POLAR_COLUMNS", "Polar", "Table", "polar", "polar_rows", "tidy_table",
+           "TABLE_WRITERS", "check_table_outputs", "write_table", "write_table_csv",
+           "write_table_json", "read_table"]
+
+TABLE_FORMAT = "panelflow table"
+CSV_DIGITS = 10  # significant digits in CSV files, as in panelflow.output.writers.write_polar_csv
+
+
+@dataclass(frozen=True)
+class Polar:
+    """One geometry's results against the angle of attack.
+
+    Attributes
+    ----------
+    label : str
+        The section's name in tables and figure legends.
+    alpha_deg, cl, cm, cd_pressure, cp_min, x_cp_min, x_stagnation, cl_error_estimate,
+    cm_error_estimate : ndarray, shape (n_alpha,)
+        As in :data:`POLAR_COLUMNS`: totals of all bodies; ``cp_min``, its chord position and
+        the stagnation point are the main (first) body's.
+    chord : float
+        Reference chord (the main body's), outline units.
+    reference_point : (float, float)
+        Moment reference point.
+    panels : tuple of int
+        Panels per body.
+    bodies : tuple of str
+        Body names.
+    extra : dict of str to ndarray
+        Further per-angle columns (e.g. ``cl_mach``), in order; empty by default.
+    """
+
+    label: str
+    alpha_deg: np.ndarray
+    cl: np.ndarray
+    cm: np.ndarray
+    cd_pressure: np.ndarray
+    cp_min: np.ndarray
+    x_cp_min: np.ndarray
+    x_stagnation: np.ndarray
+    cl_error_estimate: np.ndarray
+    cm_error_estimate: np.ndarray
+    chord: float = 1.0
+    reference_point: tuple = (0.25, 0.0)
+    panels: tuple = ()
+    bodies: tuple = ()
+    extra: dict = field(default_factory=dict)
+
+    def __post_init__(self):
+        n = None
+        for name in POLAR_COLUMNS:
+            arr = np.array(getattr(self, name), float).ravel()
+            arr.setflags(write=False)
+            object.__setattr__(self, name, arr)
+            if n is not None and len(arr) != n:
+                raise InputError(f"polar {self.label!r}: column {name} has {len(arr)} values, "
+                                 f"alpha_deg {n}")
+            n = len(arr)
+        extra = {}
+        for name, values in dict(self.extra).items():
+            if name in POLAR_COLUMNS:
+                raise InputError(f"polar {self.label!r}: extra column {name!r} is a standard one")
+            arr = np.array(values, float).ravel()
+            if len(arr) != n:
+                raise InputError(f"polar {self.label!r}: column {name} has {len(arr)} values, "
+                                 f"alpha_deg {n}")
+            arr.setflags(write=False)
+            extra[str(name)] = arr
+        object.__setattr__(self, "extra", extra)
+        object.__setattr__(self, "reference_point",
+                           tuple(float(v) for v in self.reference_point))
+        object.__setattr__(self, "panels", tuple(int(v) for v in self.panels))
+        object.__setattr__(self, "bodies", tuple(str(v) for v in self.bodies))
+
+    @property
+    def columns(self) -> tuple:
+        """Names of all per-angle columns: :data:`POLAR_COLUMNS`, then the extra ones."""
+        return POLAR_COLUMNS + tuple(self.extra)
+
+    def column(self, name: str) -> np.ndarray:
+        if name in POLAR_COLUMNS:
+            return getattr(self, name)
+        try:
+            return self.extra[name]
+        except KeyError:
+            raise InputError(f"polar {self.label!r} has no column {name!r}; it has "
+                             f"{', '.join(self.columns)}") from None
+
+    def __len__(self) -> int:
+        return len(self.alpha_deg)
+
+    def table(self) -> Table:
+        """This polar as a table, one row per angle (no section column)."""
+        return Table({name: self.column(name) for name in self.columns})
+
+
+def polar(analysis, label: str | None = None, extra=None) -> Polar:
+    """The polar of an :class:`~panelflow.analysis.Analysis` (all its angles).
+
+    Parameters
+    ----------
+    analysis : Analysis
+    label : str, optional
+        Default: the body names joined by ``", "`` (as ``panelflow compare`` labels a case).
+    extra : dict of str to array_like, optional
+        Further per-angle columns.
+
+    Returns
+    -------
+    Polar
+        The numbers equal those of :func:`panelflow.output.writers.polar_rows` (taken from the same
+        arrays, all angles at once).
+    """
+    f = analysis.fine
+    names = tuple(o.name for o in analysis.outlines)
+    return Polar(
+        label=", ".join(names) if label is None else str(label),
+        alpha_deg=f.alpha_deg, cl=f.cl, cm=f.cm, cd_pressure=f.cd_pressure,
+        cp_min=np.asarray(f.cp_min)[:, 0], x_cp_min=np.asarray(f.x_cp_min)[:, 0],
+        x_stagnation=np.asarray(f.x_stagnation)[:, 0],
+        cl_error_estimate=analysis.cl_error_estimate, cm_error_estimate=analysis.cm_error_estimate,
+        chord=float(analysis.chord), reference_point=tuple(analysis.reference_point),
+        panels=tuple(pl.n_panels for pl in analysis.panellings), bodies=names,
+        extra=dict(extra or {}))
+
+
+def polar_rows(p: Polar):
+    """One tuple per angle, in the order of ``p.columns``."""
+    cols = [p.column(name) for name in p.columns]
+    for i in range(len(p)):
+        yield tuple(float(c[i]) for c in cols)
+
+
+@dataclass(frozen=True)
+class Table:
+    """Named columns of equal length (a tidy table: one observation per row).
+
+    Parameters
+    ----------
+    columns : dict of str to array_like
+        In order. Numeric columns become float arrays, others tuples of str.
+    """
+
+    columns: dict
+
+    def __post_init__(self):
+        cols, n = {}, None
+        for name, values in dict(self.columns).items():
+            values = list(values) if not isinstance(values, np.ndarray) else values
+            if _numeric(values):
+                col = np.array(values, float).ravel()
+                col.setflags(write=False)
+            else:
+                col = tuple(str(v) for v in values)
+            if n is not None and len(col) != n:
+                raise InputError(f"table column {name!r} has {len(col)} values, the others {n}")
+            n = len(col)
+            cols[str(name)] = col
+        object.__setattr__(self, "columns", cols)
+
+    @property
+    def names(self) -> tuple:
+        return tuple(self.columns)
+
+    def __len__(self) -> int:
+        return len(next(iter(self.columns.values()))) if self.columns else 0
+
+    def __getitem__(self, name: str):
+        try:
+            return self.columns[name]
+        except KeyError:
+            raise InputError(f"the table has no column {name!r}; it has "
+                             f"{', '.join(self.columns)}") from None
+
+    def rows(self):
+        """One tuple per row (floats and strings)."""
+        cols = list(self.columns.values())
+        for i in range(len(self)):
+            yield tuple(c[i] if isinstance(c, tuple) else float(c[i]) for c in cols)
+
+    def where(self, name: str, value) -> Table:
+        """The rows whose column ``name`` equals ``value``."""
+        col = self[name]
+        keep = np.array([v == value for v in col], bool)
+        return Table({k: (np.asarray(c)[keep] if isinstance(c, np.ndarray)
+                          else tuple(v for v, ok in zip(c, keep, strict=True) if ok))
+                      for k, c in self.columns.items()})
+
+
+def _numeric(values) -> bool:
+    if isinstance(values, np.ndarray):
+        return values.dtype.kind in "fiub"
+    return all(isinstance(v, (int, float, np.integer, np.floating)) and not isinstance(v, bool)
+               for v in values) and len(values) > 0
+
+
+def tidy_table(polars, key: str = "section") -> Table:
+    """One table of several polars: a ``key`` column with each polar's label, then its columns.
+
+    Polars with extra columns that others lack get NaN in those columns; the column order is
+    ``key``, :data:`POLAR_COLUMNS`, then extra columns in order of first appearance.
+
+    Raises
+    ------
+    InputError
+        No polar, or two with the same label (rows could not be told apart).
+    """
+    polars = list(polars)
+    if not polars:
+        raise InputError("no polar to tabulate")
+    labels = [p.label for p in polars]
+    dup = sorted({lab for lab in labels if labels.count(lab) > 1})
+    if dup:
+        raise InputError(f"section labels must differ; used twice: {', '.join(dup)}")
+    names = list(POLAR_COLUMNS)
+    for p in polars:
+        names += [n for n in p.extra if n not in names]
+    cols = {key: tuple(p.label for p in polars for _ in range(len(p)))}
+    for name in names:
+        cols[name] = np.concatenate([
+            p.column(name) if name in p.columns else np.full(len(p), np.nan) for p in polars])
+    return Table(cols)
+
+
+# ------------------------------------------------------------------------------------ files
+TABLE_WRITERS: dict = {}
+
+
+def _register(ext):
+    def deco(func):
+        TABLE_WRITERS[ext] = func
+        return func
+    return deco
+
+
+def check_table_outputs(paths, overwrite: bool = False) -> None:
+    """Raise :class:`OutputError` unless every table file can be written (known format, folder
+    present, not existing unless ``overwrite``); see :func:`panelflow.output.writers.check_outputs`."""
+    check_outputs(paths, overwrite, registry=TABLE_WRITERS, what="table")
+
+
+def _csv_value(v) -> str:
+    if isinstance(v, str):
+        return v
+    return "" if not math.isfinite(v) else f"{v:.{CSV_DIGITS}g}"
+
+
+def _comments(notes) -> list:
+    return [f"panelflow {__version__}", CAUTION, *[str(n) for n in notes]]
+
+
+@_register(".csv")
+def write_table_csv(table: Table, path, overwrite: bool = False, notes=()) -> Path:
+    """Write ``table`` as CSV under ``#`` comment lines (version, caution, ``notes``).
+
+    Returns
+    -------
+    Path
+    """
+    buf = io.StringIO()
+    for line in _comments(notes):
+        buf.write("# " + " ".join(line.split()) + "\n")
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(table.names)
+    for row in table.rows():
+        w.writerow([_csv_value(v) for v in row])
+    return atomic_write_text(path, buf.getvalue(), overwrite)
+
+
+def _json_value(v):
+    if isinstance(v, str):
+        return v
+    return float(v) if math.isfinite(v) else None
+
+
+def table_record(table: Table, notes=()) -> dict:
+    """The JSON form of a table (see the module docstring)."""
+    return {
+        "format": TABLE_FORMAT,
+        "panelflow_version": __version__,
+        "caution": CAUTION,
+        "notes": [str(n) for n in notes],
+        "columns": list(table.names),
+        "rows": [{k: _json_value(v) for k, v in zip(table.names, row, strict=True)}
+                 for row in table.rows()],
+    }
+
+
+@_register(".json")
+def write_table_json(table: Table, path, overwrite: bool = False, notes=()) -> Path:
+    """Write ``table`` as JSON (see the module docstring).
+
+    Returns
+    -------
+    Path
+    """
+    text = json.dumps(table_record(table, notes), indent=1, allow_nan=False) + "\n"
+    return atomic_write_text(path, text, overwrite)
+
+
+def write_table(table: Table, path, overwrite: bool = False, notes=()) -> Path:
+    """Write ``table`` in the format of the extension of ``path`` (``.csv`` or ``.json``).
+
+    Raises
+    ------
+    OutputError
+        Unknown extension, missing folder, or an existing file without ``overwrite``.
+    """
+    check_table_outputs([path], overwrite)
+    return TABLE_WRITERS[Path(path).suffix.lower()](table, path, overwrite, notes)
+
+
+def read_table(path) -> Table:
+    """Read a table written by :func:`write_table` (CSV or JSON) back.
+
+    Columns whose every value is a number (or empty / null) become float columns, the others
+    text. Meant for tables panelflow wrote (other CSV files work when they have one header
+    row after optional ``#`` lines).
+
+    Raises
+    ------
+    InputError
+        Missing or unreadable file, unknown extension, or a malformed table.
+    """
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
+    ext = p.suffix.lower()
+    if ext == ".json":
+        try:
+            rec = json.loads(text)
+            names = [str(n) for n in rec["columns"]]
+            raw = {n: [row.get(n) for row in rec["rows"]] for n in names}
+        except (ValueError, KeyError, TypeError, AttributeError) as exc:
+            raise InputError(f"{p}: not a panelflow table ({exc})") from None
+        return Table({n: _column(v) for n, v in raw.items()})
+    if ext != ".csv":
+        raise InputError(f"{p}: unknown table format {ext or '(no extension)'}; use .csv or .json")
+    lines = [ln for ln in text.splitlines() if ln.strip() and not ln.lstrip().startswith("#")]
+    rows = list(csv.reader(lines))
+    if not rows:
+        raise InputError(f"{p}: no header row")
+    names = rows[0]
+    if any(len(r) != len(names) for r in rows[1:]):
+        raise InputError(f"{p}: rows of different lengths")
+    return Table({n: _column([r[k] for r in rows[1:]]) for k, n in enumerate(names)})
+
+
+def _column(values):
+    def num(v):
+        if v is None or v == "":
+            return math.nan
+        if isinstance(v, bool):
+            raise TypeError("a flag, not a number")
+        return float(v)  # raises ValueError for text
+
+    try:
+        out = [num(v) for v in values]
+    except (TypeError, ValueError):
+        return ["" if v is None else str(v) for v in values]
+    return np.array(out, float)

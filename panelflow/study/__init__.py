@@ -1,0 +1,1 @@
+"""Studies: TOML case files and the runner that solves many sections on any executor."""
