@@ -4,14 +4,21 @@ Typical use::
 
     import panelflow as pf
     foil = pf.load_outlines("naca2412")
-    result = pf.analyse(foil, alpha_deg=[0, 4, 8])
-    print(result[1])
+    problem = pf.Problem(foil, pf.OperatingPoint(alpha_deg=[0, 4, 8], mach=0.3))
+    result = pf.solve(problem)
+    print(result[1], result.compressibility.critical_mach)
+
+``pf.analyse(outlines, alpha_deg)`` remains the short way to the inviscid solution alone.
 """
 
 from panelflow import _moved
 from panelflow.analysis.inviscid import (Analysis, AngleResult, BodyAngleResult, alpha_for_cl,
                                          analyse)
+from panelflow.analysis.problem import Flap, OperatingPoint, Problem
+from panelflow.analysis.result import Result
+from panelflow.analysis.solve import solve
 from panelflow.errors import GeometryError, InputError, OutputError, PanelflowError, SolveError
+from panelflow.flow.images import Boundary
 from panelflow.geometry.outline import Outline
 from panelflow.version import __version__
 
@@ -20,7 +27,7 @@ _moved.install()
 __all__ = [
     "Analysis", "AngleResult", "BodyAngleResult", "alpha_for_cl", "analyse", "GeometryError",
     "InputError", "OutputError", "PanelflowError", "SolveError", "Outline", "load_outlines",
-    "__version__",
+    "__version__", "Problem", "OperatingPoint", "Flap", "Boundary", "Result", "solve",
 ]
 
 

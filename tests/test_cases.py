@@ -38,7 +38,7 @@ def test_example_case_resolves():
                            "naca0015")
     alphas = case.tasks[0].alpha_deg
     assert alphas == tuple(float(a) for a in range(-4, 11))  # "-4:10:1", STOP included
-    assert all(t.n_panels == 200 for t in case.tasks)
+    assert all(t.panels == 200 for t in case.tasks)
     front = case.tasks[0].bodies[0]
     assert front.is_file and Path(front.source) == (ROOT / "geometries" /
                                                     "tender_front_foil.dat")
@@ -86,7 +86,7 @@ def test_defaults(tmp_path):
     assert case.outputs.tables == ("polars.csv",)
     assert case.output == tmp_path / "my_case_results"
     t = case.tasks[0]
-    assert (t.n_panels, t.reference_point, t.error_estimate, t.flap) == (200, None, True, None)
+    assert (t.panels, t.reference_point, t.error_estimate, t.flap) == (200, None, True, None)
     assert t.alpha_deg == (0.0, 2.0, 4.0)
 
 
@@ -115,7 +115,7 @@ def test_bodies_transforms_and_flap(tmp_path):
     assert (tab.name, tab.scale, tab.pitch, tab.move) == ("tab", 0.2, 5.0, (1.1, -0.05))
     assert (t.flap.hinge, t.flap.angle, t.flap.gap, t.flap.radius) == (0.7, 20.0, 0.01, 0.01)
     assert t.alpha_deg == (0.0, 2.0, 4.0)
-    assert t.n_panels is None and t.reference_point == (0.3, 0.0)
+    assert t.panels is None and t.reference_point == (0.3, 0.0)
 
 
 def test_single_output_tables_and_arrays_both_work(tmp_path):
@@ -193,7 +193,7 @@ ERRORS = [
      "did you mean 'alpha'?"),
     (MINIMAL.replace("[conditions]", "[condition]"), 4, "condition",
      "did you mean 'conditions'?"),
-    (MINIMAL + "wobble = 1\n", 6, "conditions.wobble", "valid keys here: alpha, panels"),
+    (MINIMAL + "wobble = 1\n", 6, "conditions.wobble", "valid keys here: alpha, cl, panels"),
     ("[[section]]\nspec = \"naca0012\"\n[[section]]\nspec = \"naca2412\"\nscale = -1\n"
      "[conditions]\nalpha = 0\n", 5, "section[2].scale", "must be above 0, got -1"),
     ("[[section]]\nspec = \"naca0012\"\n\n[conditions]\npanels = 100\n", 4, "conditions",

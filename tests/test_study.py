@@ -45,7 +45,7 @@ ANGLES = (-2.0, 0.0, 3.0, 6.0)
 def tasks():
     ts = section_tasks(["naca00{09..15:3}", "naca2412"], ANGLES, n_panels=N_PANELS)
     front = str(GEOMETRIES / "tender_front_foil.dat")
-    ts.append(SectionTask("front foil, pitched",
+    ts.append(SectionTask.of("front foil, pitched",
                           (BodySource(front, True, file_sha256(front), pitch=1.5),),
                           ANGLES, n_panels=N_PANELS))
     return ts
@@ -172,9 +172,10 @@ def test_open_executor_shuts_the_pool_down(tasks, serial):
 
 
 def test_failing_task_names_its_section(tasks):
-    bad = SectionTask("broken", (BodySource("naca0012"),), ANGLES, n_panels=N_PANELS,
-                      depth=1.0)
-    with pytest.raises(InputError, match=r"^section 'broken': depth needs a fluid"):
+    # a worker that cannot read the section's file: the error names the section
+    bad = SectionTask.of("broken", (BodySource("no-such-folder/foil.dat", True),), ANGLES,
+                         n_panels=N_PANELS)
+    with pytest.raises(InputError, match=r"^section 'broken': .*foil.dat"):
         run_study([tasks[0], bad])
     with make_executor(workers=2) as ex:
         with pytest.raises(InputError, match=r"^section 'broken'"):
@@ -208,10 +209,11 @@ def test_mach_and_depth_columns(tasks):
     from panelflow.conditions.cavitation import assess_in
     from panelflow.conditions.compressibility import correct
 
-    t = SectionTask("m", (BodySource("naca2412"),), ANGLES, n_panels=N_PANELS, mach=0.4,
-                    depth=0.5, fluid="sea-water", speed=9.0)
+    t = SectionTask.of("m", (BodySource("naca2412"),), ANGLES, n_panels=N_PANELS, mach=0.4,
+                       depth=0.5, fluid="sea-water", speed=9.0)
     p = run_task(t)
-    assert p.columns[-7:] == ("cl_mach", "cm_mach", "cp_min_mach", "mach_critical",
+    assert p.columns[-9:] == ("cl_mach", "cl_mach_error_estimate", "cm_mach",
+                              "cm_mach_error_estimate", "cp_min_mach", "mach_critical",
                               "inception_speed", "cavitation_number", "cavitation_margin")
     a = pf.analyse(pf.load_outlines("naca2412"), ANGLES, n_panels=N_PANELS)
     c = correct(a, 0.4)

@@ -1,6 +1,6 @@
-"""Analysis: outlines in, surface results at any number of angles out, each with an error estimate.
+"""Inviscid analysis: outlines in, surface results at any number of angles out, with error estimates.
 
-This is the library's main entry point. It composes the one-way chain
+The inviscid core of :func:`panelflow.analysis.solve.solve`. It composes the one-way chain
 
     outlines -> check -> panelling -> panels -> factorised system -> surface solution
 
@@ -10,6 +10,10 @@ index): ``error = F * |f_n - f_n/2| / (r^p - 1)`` with ``r`` the panel-count rat
 order of the method (measured in tests/test_convergence.py) and ``F = 3``, Roache's factor for a
 two-grid study (P. J. Roache, Verification and Validation in Computational Science and
 Engineering, 1998), floored at round-off level.
+
+Near a plane boundary (:func:`analyse_near_plane`) each angle has its own system (the images
+move with the angle); the results are joined into the same :class:`Analysis`, in the bodies' own
+frame, with a per-angle error estimate.
 """
 
 from __future__ import annotations
@@ -18,12 +22,16 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from panelflow.geometry import check
+from dataclasses import replace
+
 from panelflow.errors import InputError
+from panelflow.flow import images
+from panelflow.flow.solver import System, factorise
+from panelflow.flow.surface import (ChordLine, Coefficients, SurfaceSolution, coefficients,
+                                    evaluate, stack)
+from panelflow.geometry import check
 from panelflow.geometry.panelling import panel_outline
 from panelflow.geometry.panels import Panels
-from panelflow.flow.solver import System, factorise
-from panelflow.flow.surface import ChordLine, Coefficients, SurfaceSolution, coefficients, evaluate
 
 DEFAULT_PANELS = 200
 ORDER = 2.0
@@ -97,19 +105,26 @@ class Analysis:
     outlines : tuple of Outline
     panellings : tuple of Panelling
     fine : SurfaceSolution
-        Results at the requested panel count (these are the reported numbers).
+        Results at the requested panel count (these are the reported numbers). Near a plane
+        its ``cl_circulation`` is the generalised (Lagally) circulation lift and each angle has
+        its own system (``fine.system_at(i)``).
     coarse : Coefficients or None
         Coefficients at about half the panels (for the error estimate); None when switched off.
+    cl_error_estimate, cm_error_estimate : ndarray, shape (n_alpha,)
+        Discretisation error estimates; computed from ``coarse`` on the angle basis unless given
+        (per angle, near a plane). NaN without an estimate.
     """
 
     outlines: tuple
     panellings: tuple
     fine: SurfaceSolution
     coarse: Coefficients | None = field(repr=False)
-    cl_error_estimate: np.ndarray = field(init=False, repr=False)
-    cm_error_estimate: np.ndarray = field(init=False, repr=False)
+    cl_error_estimate: np.ndarray | None = field(default=None, repr=False)
+    cm_error_estimate: np.ndarray | None = field(default=None, repr=False)
 
     def __post_init__(self):
+        if self.cl_error_estimate is not None and self.cm_error_estimate is not None:
+            return
         if self.coarse is None:
             cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
         else:
@@ -153,6 +168,26 @@ class Analysis:
 
     def __len__(self) -> int:
         return len(self.alpha_deg)
+
+    def system_at(self, i: int) -> System:
+        """The factorised system of angle number ``i`` (for the field and streamlines)."""
+        return self.fine.system_at(i)
+
+    def angle_index(self, alpha_deg: float) -> int:
+        """Index of the solved angle equal to ``alpha_deg`` (to 1e-9 deg).
+
+        Raises
+        ------
+        InputError
+            When that angle was not solved.
+        """
+        a = np.asarray(self.alpha_deg, float)
+        hit = np.flatnonzero(np.abs(a - float(alpha_deg)) <= 1e-9)
+        if not len(hit):
+            raise InputError(f"angle {alpha_deg:g} deg was not solved (solved: "
+                             f"{', '.join(f'{v:g}' for v in a[:8])}"
+                             f"{', ...' if len(a) > 8 else ''})")
+        return int(hit[0])
 
     def __getitem__(self, i: int) -> AngleResult:
         f = self.fine
@@ -260,6 +295,71 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     coarse = (coefficients(_coarse_system(panellings), alpha, chord, ref) if error_estimate
               else None)
     return Analysis(outlines, panellings, fine, coarse)
+
+
+def _richardson(fine, coarse, ratio):
+    return max(SAFETY_FACTOR * abs(fine - coarse) / (ratio**ORDER - 1.0), ROUND_OFF)
+
+
+def _plane_angle(panels: Panels, boundary, pitch, alpha: float, chord, ref) -> SurfaceSolution:
+    """Solution at one angle near a plane: its own system, Lagally lift as the circulation lift."""
+    system = images.factorise(panels, boundary.image(pitch, alpha))
+    sol = evaluate(system, [alpha], chord, ref)
+    lift = images.lagally_lift(system, alpha)
+    return replace(sol, cl_circulation=np.array([2.0 * lift.sum() / chord.length]))
+
+
+def analyse_near_plane(outlines, alpha_deg, boundary, n_panels: int | None = DEFAULT_PANELS,
+                       reference_point=None, error_estimate: bool = True, chord_line=None,
+                       pitch_point=None):
+    """Solve bodies near a wall or free surface at any number of angles of attack.
+
+    Parameters
+    ----------
+    outlines, alpha_deg, n_panels, reference_point, error_estimate, chord_line
+        As for :func:`analyse`. Results are in the bodies' own frame, as in free space: the
+        freestream at ``alpha`` and the plane parallel to it.
+    boundary : panelflow.flow.images.Boundary
+        The plane, at ``boundary.distance`` from the pitch point normal to the freestream.
+    pitch_point : (x, y), optional
+        Point the distance is measured from; default the quarter chord of the reference chord
+        line.
+
+    Returns
+    -------
+    (Analysis, clearance)
+        ``clearance`` (n_alpha,) is the smallest distance from any body to the plane.
+
+    Raises
+    ------
+    GeometryError
+        A body reaches or crosses the plane at some angle.
+    """
+    outlines, alpha = checked_inputs(outlines, alpha_deg)
+    chord, quarter = _reference(outlines, chord_line)
+    ref = quarter if reference_point is None else np.asarray(reference_point, float)
+    pitch = quarter if pitch_point is None else np.asarray(pitch_point, float)
+    gaps = np.array([images.clearance(outlines, boundary.image(pitch, a), a) for a in alpha])
+    check.validate(outlines)
+    panellings = tuple(panel_outline(o, n_panels) for o in outlines)
+    panels = Panels.from_panellings(panellings)
+    sols = [_plane_angle(panels, boundary, pitch, float(a), chord, ref) for a in alpha]
+    fine = stack(sols)
+    cl_err = cm_err = np.full(len(alpha), np.nan)
+    coarse = None
+    if error_estimate:
+        coarse_panels = Panels.from_panellings([pl.coarsened() for pl in panellings])
+        ratio = panels.n_panels / coarse_panels.n_panels
+        cs = [_plane_angle(coarse_panels, boundary, pitch, float(a), chord, ref) for a in alpha]
+        cl_c = np.array([s.cl_circulation[0] for s in cs])
+        cm_c = np.array([s.cm[0] for s in cs])
+        cl_err = np.array([_richardson(f, c, ratio) for f, c in zip(fine.cl_circulation, cl_c)])
+        cm_err = np.array([_richardson(f, c, ratio) for f, c in zip(fine.cm, cm_c)])
+        coarse = Coefficients(coarse_panels.n_panels, alpha, cl_c,
+                              np.array([s.cl_pressure[0] for s in cs]),
+                              np.array([s.cd_pressure[0] for s in cs]), cm_c,
+                              np.full(2, np.nan), np.full(4, np.nan))
+    return Analysis(outlines, panellings, fine, coarse, cl_err, cm_err), gaps
 
 
 def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,

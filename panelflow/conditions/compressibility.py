@@ -303,12 +303,15 @@ class CompressibleResult:
         Ratio of specific heats used in the rule and in Cp*.
     alpha_deg : (n_alpha,) angles of attack, degrees.
     cp : (n_alpha, n_nodes) corrected Cp at the nodes (NaN where the rule breaks down).
+    cp_mid : (n_alpha, n_panels) corrected Cp at the panel midpoints (of the mean of the two end
+        speeds, as the incompressible integrals take it).
+    cp_base : (n_alpha, n_base) corrected base pressure of each blunt trailing edge.
     cl : (n_alpha,) corrected lift coefficient: the circulation lift divided by beta (the
         Prandtl-Glauert scaling, exact in linearised theory), plus, for the other rules, the
         difference between that rule's and Prandtl-Glauert's integrated pressure lift.
     cl_pressure, cd_pressure, cm : (n_alpha,) integrals of the corrected Cp (cm about the
         analysis' reference point, nose-up positive).
-    body_cl, body_cm : (n_alpha, n_bodies) per body, pressure integration.
+    body_cl, body_cd, body_cm : (n_alpha, n_bodies) per body, pressure integration.
     cl_error_estimate, cm_error_estimate : (n_alpha,) the incompressible discretisation error
         estimates times the largest slope d Cp / d Cp0 of the rule on the surface (1/beta for
         Prandtl-Glauert), a conservative propagation.
@@ -342,6 +345,9 @@ class CompressibleResult:
     critical_mach: np.ndarray
     supercritical: np.ndarray = field(repr=False)
     warnings: tuple = ()
+    cp_mid: np.ndarray = field(default=None, repr=False)
+    cp_base: np.ndarray = field(default=None, repr=False)
+    body_cd: np.ndarray = field(default=None, repr=False)
 
     def __post_init__(self):
         for value in vars(self).values():
@@ -397,8 +403,8 @@ def correct(analysis, mach: float, rule: str = KARMAN_TSIEN,
     cp0_base = 1.0 - v_te * v_te
 
     cp = _apply(cp0, m, rule, g)
-    force, moment = _integrate(p, cp, _apply(cp0_mid, m, rule, g), _apply(cp0_base, m, rule, g),
-                               fine.chord_line, fine.reference_point)
+    cp_mid, cp_base = _apply(cp0_mid, m, rule, g), _apply(cp0_base, m, rule, g)
+    force, moment = _integrate(p, cp, cp_mid, cp_base, fine.chord_line, fine.reference_point)
     rot = np.exp(-1j * np.radians(alpha))[:, None]
     body_cl = (rot * force).imag / c
     body_cd = (rot * force).real / c
@@ -437,4 +443,5 @@ def correct(analysis, mach: float, rule: str = KARMAN_TSIEN,
         cd_pressure=body_cd.sum(axis=1), cm=body_cm.sum(axis=1), body_cl=body_cl,
         body_cm=body_cm, cl_error_estimate=cl_err * factor, cm_error_estimate=cm_err * factor,
         cp_min=cp_min, cp_min_incompressible=cp0_min.copy(), cp_star=cp_star,
-        critical_mach=m_crit, supercritical=super_, warnings=tuple(notes))
+        critical_mach=m_crit, supercritical=super_, warnings=tuple(notes), cp_mid=cp_mid,
+        cp_base=cp_base, body_cd=body_cd)

@@ -275,13 +275,40 @@ def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
     return w, inside
 
 
-def flow_field(system: System, points, alpha_deg, shape=None) -> FlowField:
+def system_for(source, alpha_deg: float) -> System:
+    """The system that gives the flow at ``alpha_deg``.
+
+    ``source`` is a :class:`System`, or a solved result (anything with ``system_at`` and
+    ``angle_index``, such as :class:`panelflow.analysis.result.Result`), whose angles may each
+    have their own system (near a plane boundary).
+
+    Raises
+    ------
+    InputError
+        A result solved with a Mach number (the field is incompressible: the similarity rules
+        correct surface pressures only), or an angle the result does not hold.
+    """
+    if isinstance(source, System):
+        return source
+    if getattr(source, "compressibility", None) is not None:
+        raise InputError("the flow field is incompressible: the Mach number corrections apply "
+                         "to surface pressures only; compute the field without a Mach number")
+    try:
+        pick, index = source.system_at, source.angle_index
+    except AttributeError:
+        raise InputError(f"expected a System or a solved result, got "
+                         f"{type(source).__name__}") from None
+    return pick(index(alpha_deg))
+
+
+def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
     """Velocity and Cp at ``points`` for each angle of attack.
 
     Parameters
     ----------
-    system : System
-        Factorised panel system (``Analysis.fine.system``).
+    source : System or Result
+        A factorised panel system, or a solved result (the field then uses each angle's own
+        system; near a plane boundary a field is for one angle).
     points : array_like
         Complex ``x + i y`` or an (n, 2) array.
     alpha_deg : float or array_like
@@ -295,6 +322,11 @@ def flow_field(system: System, points, alpha_deg, shape=None) -> FlowField:
     """
     pts = _as_points(points)
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
+    systems = {id(s): s for s in (system_for(source, a) for a in alpha)}
+    if len(systems) > 1:
+        raise InputError("near a plane boundary each angle has its own flow: compute the field "
+                         "of one angle at a time")
+    system = next(iter(systems.values()))
     w_unit, inside = unit_fields(system, pts)
     a = np.radians(alpha)
     w = np.cos(a)[:, None] * w_unit[None, :, 0] + np.sin(a)[:, None] * w_unit[None, :, 1]

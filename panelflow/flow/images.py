@@ -1,7 +1,7 @@
 """Plane boundaries by images: a wall (or the ground) and a free surface at high Froude number.
 
-A plane ``y = y_p`` near the bodies is represented by the bodies' mirror images (method of
-images; L. M. Milne-Thomson, *Theoretical Hydrodynamics*, images in a plane, from memory):
+A plane near the bodies is represented by the bodies' mirror images (method of images; L. M.
+Milne-Thomson, *Theoretical Hydrodynamics*, images in a plane, from memory):
 
 * **wall / ground** -- no flow through the plane (it is a streamline). The image is the
   reflected geometry with vorticity of the opposite sense and sources of the same sign;
@@ -11,15 +11,17 @@ images; L. M. Milne-Thomson, *Theoretical Hydrodynamics*, images in a plane, fro
   sign. Gravity waves are neglected, which holds only when the depth Froude number
   ``U / sqrt(g h)`` is large.
 
-Both are steady only with the freestream parallel to the plane, so **with a boundary the
-freestream is along +x and the angle of attack pitches the bodies**: at angle ``alpha`` every
-body is rotated nose-up by ``alpha`` about the pitch point (default the main body's quarter
-chord), and the plane stays at its distance from that point. One geometry per angle, so each
-angle costs one factorisation.
+Both are steady only with the freestream parallel to the plane. Everything here is worked in the
+bodies' own frame (the frame of the outlines, as without a plane): at angle of attack ``alpha``
+the freestream comes along ``exp(i alpha)`` and the plane runs parallel to it at its distance from
+the pitch point (default the main body's quarter chord). In the plane's frame this is the same as
+the bodies pitched nose-up by ``alpha`` with the freestream along the plane. The plane's direction
+changes with the angle, so each angle has its own matrix (one factorisation per angle); surface
+results, forces and moments come out in the same frame and convention as in free space.
 
 Built on the multi-body solver: the reflected panels are added to the panel set as extra bodies,
-the multi-body matrix is assembled by :func:`panelflow.flow.solver.assemble` unchanged, and the image
-strengths are then tied to the real ones (``gamma_image = s gamma_real`` at the mirrored node,
+the multi-body matrix is assembled by :func:`panelflow.flow.solver.assemble` unchanged, and the
+image strengths are then tied to the real ones (``gamma_image = s gamma_real`` at the mirrored node,
 ``s = -1`` for a wall, ``+1`` for a free surface); only the real bodies' equations are kept. The
 image of a blunt base follows from the tie (its source strength is fixed by the image's
 trailing-edge speed), with the right sign in both cases. :class:`Image` holds the same image
@@ -27,10 +29,11 @@ terms as kernels (stream function and velocity of the mirrored panels), for use 
 assembly and the field evaluation.
 
 Forces: with images, the Kutta-Joukowski lift of a body's own circulation is no longer its lift
-(the body and its image pull on each other). The generalised circulation lift used here is the
-Lagally form ``L = -rho int gamma u_ext ds - rho sigma h v_ext`` (Blasius' theorem with the images
-and the freestream as the external flow ``u_ext - i v_ext``; it reduces to ``-rho U Gamma`` in free
-space); the pressure-integrated lift is reported beside it.
+(the body and its image pull on each other). The generalised circulation force used here is the
+Lagally form ``F_x + i F_y = -rho int i gamma conj(w_ext) ds - rho sigma h conj(w_ext)`` (Blasius'
+theorem with the images and the freestream as the external flow ``w_ext = u_ext - i v_ext``; its
+lift component reduces to ``-rho U Gamma`` in free space); the pressure-integrated lift is reported
+beside it.
 """
 
 from __future__ import annotations
@@ -40,16 +43,11 @@ from dataclasses import dataclass, field
 import numpy as np
 import scipy.linalg
 
-from panelflow.geometry import check
-from panelflow.flow import influence
-from panelflow.analysis.inviscid import (DEFAULT_PANELS, ORDER, ROUND_OFF, SAFETY_FACTOR, checked_inputs,
-                       default_reference)
 from panelflow.errors import GeometryError, InputError, SolveError
-from panelflow.geometry.outline import SMOOTH, Outline
-from panelflow.geometry.panelling import panel_outline
-from panelflow.geometry.panels import Panels
+from panelflow.flow import influence
 from panelflow.flow.solver import System, assemble
-from panelflow.flow.surface import evaluate
+from panelflow.geometry.outline import SMOOTH, Outline
+from panelflow.geometry.panels import Panels
 
 WALL = "wall"
 FREE_SURFACE = "free-surface"
@@ -119,9 +117,10 @@ def _vortex_velocity(points, z1, tangent, length, g_start, g_end) -> np.ndarray:
     return (lam_r + 1j * lam_i) @ coef_start + (j_r + 1j * j_i) @ coef_delta
 
 
-def reflect(z, plane_y: float):
-    """Mirror complex points in the line ``y = plane_y``."""
-    return np.conj(np.asarray(z, complex)) + 2j * plane_y
+def reflect(z, point: complex, direction: complex = 1.0):
+    """Mirror complex points in the line through ``point`` along the unit vector ``direction``."""
+    e2 = complex(direction) ** 2
+    return complex(point) + e2 * np.conj(np.asarray(z, complex) - complex(point))
 
 
 @dataclass(frozen=True)
@@ -133,7 +132,8 @@ class Boundary:
     kind : str
         ``"wall"`` (ground, tank floor, tunnel wall) or ``"free-surface"``.
     distance : float
-        Distance from the pitch point to the plane, in the outline's length unit (positive).
+        Distance from the pitch point to the plane, normal to the freestream, in the outline's
+        length unit (positive).
     above : bool
         True when the plane lies above the pitch point (a free surface, a ceiling), False when
         below (the ground).
@@ -167,19 +167,27 @@ class Boundary:
         """Image vorticity per unit real vorticity: -1 for a wall, +1 for a free surface."""
         return -1.0 if self.kind == WALL else 1.0
 
-    def plane_y(self, pitch_point) -> float:
-        """y of the plane for the given pitch point."""
-        y = float(np.asarray(pitch_point, float)[1])
-        return y + self.distance if self.above else y - self.distance
+    @property
+    def label(self) -> str:
+        """Plain words: ``"wall"`` or ``"free surface"``."""
+        return self.kind.replace("-", " ")
 
-    def image(self, pitch_point) -> Image:
-        """The image kernels of this boundary for the given pitch point."""
-        return Image(self.plane_y(pitch_point), self.vortex_sign, fluid_below=self.above)
+    def image(self, pitch_point, alpha_deg: float = 0.0) -> Image:
+        """The image kernels of this boundary at angle of attack ``alpha_deg``.
+
+        In the bodies' frame the freestream and the plane run along ``exp(i alpha)``; the plane
+        passes at ``distance`` from ``pitch_point``, on the side given by ``above``.
+        """
+        e = complex(np.exp(1j * np.radians(float(alpha_deg))))
+        up = 1j * e
+        p0 = complex(*np.asarray(pitch_point, float)) + (1.0 if self.above else -1.0) * \
+            self.distance * up
+        return Image(p0, e, self.vortex_sign, fluid_above=not self.above)
 
 
 @dataclass(frozen=True)
 class Image:
-    """Mirror images in the plane ``y = plane_y``, as kernels for assembly and field evaluation.
+    """Mirror images in a straight line, as kernels for assembly and field evaluation.
 
     The image of a vortex panel from ``z1`` to ``z2`` is the panel from ``R(z1)`` to ``R(z2)``
     (``R`` the reflection), carrying ``vortex_sign`` times the real nodal vorticities at the same
@@ -189,28 +197,44 @@ class Image:
 
     Attributes
     ----------
-    plane_y : float
+    point : complex
+        A point of the plane (the foot of the normal from the pitch point).
+    direction : complex
+        Unit vector along the plane (the freestream direction).
     vortex_sign : float
         -1 (wall) or +1 (free surface).
-    fluid_below : bool
-        True when the bodies and the fluid lie below the plane.
+    fluid_above : bool
+        True when the bodies and the fluid lie on the left of ``direction`` (above the plane).
     """
 
-    plane_y: float
+    point: complex
+    direction: complex
     vortex_sign: float
-    fluid_below: bool
+    fluid_above: bool
 
     @property
     def source_sign(self) -> float:
         return -self.vortex_sign
 
     def reflect(self, z):
-        return reflect(z, self.plane_y)
+        return reflect(z, self.point, self.direction)
+
+    def mirror_tangent(self, t):
+        """Direction of a reflected panel whose real panel runs along ``t`` (start stays start)."""
+        return self.direction**2 * np.conj(np.asarray(t, complex))
+
+    def height(self, points) -> np.ndarray:
+        """Signed distance of points from the plane, positive on the fluid's side."""
+        h = ((np.asarray(points, complex) - self.point) * np.conj(self.direction)).imag
+        return h if self.fluid_above else -h
 
     def beyond(self, points) -> np.ndarray:
         """True for points on the far side of the plane (outside the flow)."""
-        y = np.asarray(points, complex).imag
-        return y > self.plane_y if self.fluid_below else y < self.plane_y
+        return self.height(points) < 0.0
+
+    def line(self, half_length: float = 1.0) -> np.ndarray:
+        """Two points of the plane, ``half_length`` either side of :attr:`point` (for figures)."""
+        return self.point + np.array([-1.0, 1.0]) * half_length * self.direction
 
     def vortex_psi(self, points, panels: Panels):
         """Stream function at ``points`` of the mirrored vortex panels, per unit nodal vorticity.
@@ -219,18 +243,18 @@ class Image:
         to be added to those of :func:`panelflow.flow.influence.vortex_psi` of the real panels.
         """
         a, b = _vortex_psi(np.asarray(points, complex), self.reflect(panels.z1),
-                           np.conj(panels.tangent), panels.length)
+                           self.mirror_tangent(panels.tangent), panels.length)
         return self.vortex_sign * a, self.vortex_sign * b
 
     def source_psi(self, points, z1, tangent, length):
         """Stream function at ``points`` of the mirrored base source panels, per unit strength.
 
-        Same arguments as :func:`panelflow.flow.influence.source_psi` for the real base panels; the
-        result is to be added to it.
+        Same arguments as :func:`panelflow.flow.influence.source_psi` for the real base panels;
+        the result is to be added to it.
         """
         z2 = np.asarray(z1) + np.asarray(length) * np.asarray(tangent)
         return self.source_sign * _source_psi(
-            np.asarray(points, complex), self.reflect(z2), -np.conj(tangent), length)
+            np.asarray(points, complex), self.reflect(z2), -self.mirror_tangent(tangent), length)
 
     def velocity(self, points, panels: Panels, strengths, base_sigma=None) -> np.ndarray:
         """Complex velocity ``u - i v`` of the images at ``points``.
@@ -253,7 +277,7 @@ class Image:
         if g.ndim == 1:
             g = g[:, None]
         pts = np.asarray(points, complex).ravel()
-        z1, t = self.reflect(panels.z1), np.conj(panels.tangent)
+        z1, t = self.reflect(panels.z1), self.mirror_tangent(panels.tangent)
         gs, ge = self.vortex_sign * g[panels.start], self.vortex_sign * g[panels.end]
 
         def kernel(block):
@@ -265,7 +289,7 @@ class Image:
             bl = np.abs(bz2 - bz1)
             bt = (bz2 - bz1) / bl
             sig = self.source_sign * np.asarray(base_sigma, float).reshape(len(bl), -1)
-            w = w + _source_velocity(pts, self.reflect(bz2), -np.conj(bt), bl) @ (
+            w = w + _source_velocity(pts, self.reflect(bz2), -self.mirror_tangent(bt), bl) @ (
                 sig.astype(complex))
         return w
 
@@ -351,9 +375,9 @@ def reduced_system(panels: Panels, image: Image):
 def factorise(panels: Panels, image: Image) -> System:
     """Factorise the real bodies' system with their images and solve the two unit freestreams.
 
-    Column 0 of ``System.unit`` (freestream along x, parallel to the plane) is the physical
-    solution; column 1 (along y) satisfies the plane's condition only for a free surface and is
-    kept for checks.
+    The columns of ``System.unit`` are the unit freestreams along x and along y with the images
+    tied in; only their combination along the plane (``image.direction``) is a physical flow,
+    which is what :meth:`System.gamma` gives at the angle the image was built for.
 
     Raises
     ------
@@ -376,10 +400,15 @@ def factorise(panels: Panels, image: Image) -> System:
     return System(panels, unit, base_factor, rcond, image)
 
 
-def _real_velocity(system: System, points, column: int = 0) -> np.ndarray:
+def _strengths(system: System, alpha_deg: float):
+    """Nodal vorticity and base source strengths of the physical solution at ``alpha_deg``."""
+    g = system.gamma([alpha_deg])[0]
+    return g, system.base_factor @ g
+
+
+def _real_velocity(system: System, points, g, sigma) -> np.ndarray:
     """Complex velocity ``u - i v`` induced by the real panels (no freestream), one solution."""
     p = system.panels
-    g = system.unit[:p.n_nodes, column]
     pts = np.asarray(points, complex).ravel()
     gs, ge = g[p.start, None], g[p.end, None]
 
@@ -390,255 +419,90 @@ def _real_velocity(system: System, points, column: int = 0) -> np.ndarray:
     if len(p.base_body):
         bz1, bz2 = p.base_z1, p.base_z2
         bl = np.abs(bz2 - bz1)
-        w = w + _source_velocity(pts, bz1, (bz2 - bz1) / bl, bl) @ (
-            system.base_factor @ g).astype(complex)
+        w = w + _source_velocity(pts, bz1, (bz2 - bz1) / bl, bl) @ sigma.astype(complex)
     return w
 
 
-def velocity(system: System, image: Image, points, column: int = 0) -> np.ndarray:
+def velocity(system: System, points, alpha_deg: float) -> np.ndarray:
     """Total complex velocity ``u - i v`` (freestream, bodies and images) at points off the surface.
 
     For checks and simple field samples: no near-surface treatment, no inside mask (NaN only for
-    points beyond the plane). ``column`` 0 is the freestream along x, 1 along y.
+    points beyond the plane). ``system`` must carry the image built for ``alpha_deg``.
 
     Returns
     -------
     ndarray of complex, shape (n,)
     """
+    image = system.image
     p = system.panels
     pts = np.asarray(points, complex).ravel()
-    g = system.unit[:p.n_nodes, column]
-    w = _real_velocity(system, pts, column)
-    w = w + image.velocity(pts, p, g[:, None], (system.base_factor @ g)[:, None])[:, 0]
-    w = w + (1.0 if column == 0 else -1j)
+    g, sigma = _strengths(system, alpha_deg)
+    w = _real_velocity(system, pts, g, sigma)
+    w = w + image.velocity(pts, p, g[:, None], sigma[:, None])[:, 0]
+    w = w + np.exp(-1j * np.radians(alpha_deg))
     return np.where(image.beyond(pts), np.nan + 0j, w)
 
 
-@dataclass(frozen=True)
-class BoundaryAnalysis:
-    """Solution of bodies near a plane boundary at several angles of attack.
+def lagally_lift(system: System, alpha_deg: float) -> np.ndarray:
+    """Per-body lift (rho = U = 1) of the generalised circulation force, normal to the freestream.
 
-    With a boundary the freestream is along +x and each angle pitches the bodies about
-    ``pitch_point``; coefficients use the main body's chord (lift normal to the freestream,
-    moments about the reference point, which pitches with the bodies; nose-up positive).
-
-    Attributes
-    ----------
-    boundary : Boundary
-    image : Image
-        The plane (``image.plane_y``) and its image kernels.
-    pitch_point : ndarray, shape (2,)
-    alpha_deg : (n_alpha,)
-    cl : (n_alpha,) total lift, the generalised circulation (Lagally) lift.
-    cl_circulation, cl_pressure : (n_alpha,) that lift and the pressure-integrated one.
-    cd_pressure : (n_alpha,) pressure drag (zero in exact inviscid flow: a check).
-    cm : (n_alpha,) pitching moment about the reference point.
-    cl_error_estimate, cm_error_estimate : (n_alpha,) Richardson estimates from a half-panel
-        solve (per angle; the geometry changes with the angle, so the angle-basis components of
-        the free-space estimate do not exist here).
-    body_cl, body_cm : (n_alpha, n_bodies) per body, pressure integration.
-    cp_min : (n_alpha, n_bodies) minimum Cp of each body.
-    clearance : (n_alpha,) smallest distance from any body to the plane.
-    body_names : tuple of str
-    surfaces : tuple of SurfaceSolution
-        Per angle, the surface solution of the pitched geometry (evaluated at 0 deg: the
-        freestream along x), with node positions, Cp and stagnation points; its ``system``
-        carries the image, so :func:`panelflow.flow.field.flow_field` on it (at 0 deg) gives the
-        field with the plane.
-    pitched : tuple of tuple of Outline
-        Per angle, the bodies as pitched for it.
-    cautions : tuple of str
-    """
-
-    boundary: Boundary
-    image: Image
-    pitch_point: np.ndarray
-    alpha_deg: np.ndarray
-    cl: np.ndarray
-    cl_circulation: np.ndarray = field(repr=False)
-    cl_pressure: np.ndarray = field(repr=False)
-    cd_pressure: np.ndarray = field(repr=False)
-    cm: np.ndarray
-    cl_error_estimate: np.ndarray = field(repr=False)
-    cm_error_estimate: np.ndarray = field(repr=False)
-    body_cl: np.ndarray = field(repr=False)
-    body_cm: np.ndarray = field(repr=False)
-    cp_min: np.ndarray = field(repr=False)
-    clearance: np.ndarray
-    body_names: tuple = field(repr=False)
-    surfaces: tuple = field(repr=False)
-    pitched: tuple = field(repr=False)
-    cautions: tuple = field(repr=False)
-
-    def __post_init__(self):
-        for value in vars(self).values():
-            if isinstance(value, np.ndarray):
-                value.setflags(write=False)
-
-    def __len__(self) -> int:
-        return len(self.alpha_deg)
-
-
-def _lagally_lift(system: System, image: Image) -> np.ndarray:
-    """Per-body lift ``-int gamma u_ext ds - sigma h v_ext`` (rho = U = 1, freestream along x).
-
-    ``u_ext - i v_ext`` is the freestream plus the images' velocity; gamma is linear on each
-    panel and u_ext smooth, so Simpson's rule on the panel's ends and midpoint is used.
+    ``F = -int i gamma conj(w_ext) ds - sigma h conj(w_ext)`` with ``w_ext`` the freestream plus
+    the images' velocity; gamma is linear on each panel and ``w_ext`` smooth, so Simpson's rule on
+    the panel's ends and midpoint is used. The lift is the component of ``F`` normal to the
+    freestream direction ``exp(i alpha)``.
     """
     p = system.panels
-    g = system.unit[:p.n_nodes, 0]
-    sig = system.base_factor @ g
+    image = system.image
+    g, sig = _strengths(system, alpha_deg)
     zn = p.nodes[:, 0] + 1j * p.nodes[:, 1]
     pts = np.concatenate([zn, p.mid])
-    w = 1.0 + image.velocity(pts, p, g[:, None], sig[:, None])[:, 0]
-    u_node, u_mid = w[:p.n_nodes].real, w[p.n_nodes:].real
+    w_inf = np.exp(-1j * np.radians(alpha_deg))
+    cw = np.conj(w_inf + image.velocity(pts, p, g[:, None], sig[:, None])[:, 0])
+    c_node, c_mid = cw[:p.n_nodes], cw[p.n_nodes:]
     ga, gb = g[p.start], g[p.end]
-    per_panel = p.length / 6.0 * (ga * u_node[p.start] + 2.0 * (ga + gb) * u_mid
-                                  + gb * u_node[p.end])
-    lift = -np.bincount(p.body, weights=per_panel, minlength=p.n_bodies)
+    per_panel = -1j * p.length / 6.0 * (ga * c_node[p.start] + 2.0 * (ga + gb) * c_mid
+                                        + gb * c_node[p.end])
+    force = np.bincount(p.body, weights=per_panel.real, minlength=p.n_bodies) + 1j * np.bincount(
+        p.body, weights=per_panel.imag, minlength=p.n_bodies)
     if len(p.base_body):
         bz1, bz2 = p.base_z1, p.base_z2
-        wb = 1.0 + image.velocity(0.5 * (bz1 + bz2), p, g[:, None], sig[:, None])[:, 0]
-        lift[p.base_body] -= sig * np.abs(bz2 - bz1) * (-wb.imag)  # v_ext = -Im(u - i v)
-    return lift
+        wb = w_inf + image.velocity(0.5 * (bz1 + bz2), p, g[:, None], sig[:, None])[:, 0]
+        force[p.base_body] -= sig * np.abs(bz2 - bz1) * np.conj(wb)
+    return (force * np.conj(np.exp(1j * np.radians(alpha_deg)))).imag
 
 
-def _pitch(outlines, alpha: float, about):
-    return tuple(o.rotated(alpha, about=about) for o in outlines)
+def clearance(outlines, image: Image, alpha_deg: float) -> float:
+    """Smallest distance from any body's points to the plane.
 
-
-def _rotate_point(point, alpha: float, about) -> np.ndarray:
-    a = np.radians(alpha)
-    rot = np.array([[np.cos(a), np.sin(a)], [-np.sin(a), np.cos(a)]])  # as Outline.rotated
-    c = np.asarray(about, float)
-    return c + rot @ (np.asarray(point, float) - c)
-
-
-def _clearance(outlines, image: Image, alpha: float) -> float:
+    Raises
+    ------
+    GeometryError
+        A body reaches or crosses the plane.
+    """
     gaps = []
     for o in outlines:
-        y = o.points[:, 1]
-        gap = image.plane_y - y.max() if image.fluid_below else y.min() - image.plane_y
+        h = image.height(o.points[:, 0] + 1j * o.points[:, 1])
+        gap = float(h.min())
         if gap <= 0.0:
-            side = "below" if image.fluid_below else "above"
-            other = "above" if image.fluid_below else "below"
+            side = "above" if image.fluid_above else "below"
             raise GeometryError(
-                f"at alpha = {alpha:g} deg body {o.name!r} reaches the plane y = "
-                f"{image.plane_y:.6g} (it must lie wholly {side} it; its extreme point is "
-                f"{abs(gap):.4g} {other} the plane): increase the distance to the boundary or "
-                "reduce the angle")
+                f"at alpha = {alpha_deg:g} deg body {o.name!r} reaches the plane (it must lie "
+                f"wholly {side} it; its farthest point is {abs(gap):.4g} beyond it): increase the "
+                "distance to the boundary or reduce the angle")
         gaps.append(gap)
     return float(min(gaps))
 
 
-def _solve_angle(outlines, alpha, image, pitch, ref_given, n_panels):
-    pitched = _pitch(outlines, alpha, pitch)
-    clearance = _clearance(pitched, image, alpha)
-    check.validate(pitched)
-    panellings = tuple(panel_outline(o, n_panels) for o in pitched)
-    chord, quarter = default_reference(pitched)
-    ref = quarter if ref_given is None else _rotate_point(ref_given, alpha, pitch)
-    system = factorise(Panels.from_panellings(panellings), image)
-    sol = evaluate(system, [0.0], chord, ref)
-    return pitched, panellings, system, sol, chord, ref, clearance
+def mirrored_pair(outlines, image: Image) -> tuple:
+    """The bodies and their mirror images in the plane of ``image`` as plain outlines.
 
-
-def _coarse(panellings, image, chord, ref):
-    system = factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]), image)
-    sol = evaluate(system, [0.0], chord, ref)
-    c = chord.length
-    return (float(_lagally_lift(system, image).sum() * 2.0 / c), float(sol.cm[0]),
-            system.panels.n_panels)
-
-
-def analyse_with_boundary(outlines, alpha_deg, boundary: Boundary,
-                          n_panels: int | None = DEFAULT_PANELS, pitch_point=None,
-                          reference_point=None, error_estimate: bool = True) -> BoundaryAnalysis:
-    """Solve bodies near a wall or a free surface at any number of angles of attack.
-
-    Parameters
-    ----------
-    outlines : sequence of Outline
-        The bodies as drawn (at zero angle); the first is the main body (reference chord).
-    alpha_deg : float or array_like
-        Angles of attack in degrees: each pitches all bodies nose-up about ``pitch_point``; the
-        freestream stays along +x, parallel to the plane.
-    boundary : Boundary
-        The plane, at ``boundary.distance`` from the pitch point.
-    n_panels : int or None
-        Panels per body (None keeps the given points).
-    pitch_point : (x, y), optional
-        Point the bodies pitch about and the boundary distance is measured from; default the
-        main body's quarter chord.
-    reference_point : (x, y), optional
-        Moment reference point in the drawn (unpitched) frame, pitched with the bodies; default
-        the main body's quarter chord.
-    error_estimate : bool
-        Solve again at half the panels for the discretisation error estimate.
-
-    Returns
-    -------
-    BoundaryAnalysis
-
-    Raises
-    ------
-    InputError
-        No outline, bad angles, or a plane more than ``MAX_DISTANCE_CHORDS`` main-body chords
-        away.
-    GeometryError
-        A body reaches or crosses the plane at some angle.
-    """
-    outlines, alpha = checked_inputs(outlines, alpha_deg)
-    pitch = (outlines[0].chord_point(0.25) if pitch_point is None
-             else np.asarray(pitch_point, float))
-    if boundary.distance > MAX_DISTANCE_CHORDS * outlines[0].chord:
-        raise InputError(
-            f"boundary {boundary.distance:g} away is more than {MAX_DISTANCE_CHORDS:g} chords "
-            "from the bodies: its effect on lift is below 0.04 % there and the image terms lose "
-            "precision; solve without the boundary")
-    image = boundary.image(pitch)
-    ref_given = None if reference_point is None else np.asarray(reference_point, float)
-    nb, na = len(outlines), len(alpha)
-    cl_g, cl_p, cd_p, cm = (np.zeros(na) for _ in range(4))
-    cl_err, cm_err = np.full(na, np.nan), np.full(na, np.nan)
-    body_cl, body_cm, cp_min = (np.zeros((na, nb)) for _ in range(3))
-    clearance = np.zeros(na)
-    surfaces, pitched = [], []
-    for i, a in enumerate(alpha):
-        bodies, panellings, system, sol, chord, ref, clearance[i] = _solve_angle(
-            outlines, float(a), image, pitch, ref_given, n_panels)
-        pitched.append(tuple(bodies))
-        c = chord.length
-        cl_g[i] = 2.0 * _lagally_lift(system, image).sum() / c
-        cl_p[i], cd_p[i], cm[i] = sol.cl_pressure[0], sol.cd_pressure[0], sol.cm[0]
-        body_cl[i], body_cm[i], cp_min[i] = sol.body_cl[0], sol.body_cm[0], sol.cp_min[0]
-        surfaces.append(sol)
-        if error_estimate:
-            cl_c, cm_c, n_c = _coarse(panellings, image, chord, ref)
-            ratio = system.panels.n_panels / n_c
-            k = SAFETY_FACTOR / (ratio**ORDER - 1.0)
-            cl_err[i] = max(k * abs(cl_g[i] - cl_c), ROUND_OFF)
-            cm_err[i] = max(k * abs(cm[i] - cm_c), ROUND_OFF)
-    return BoundaryAnalysis(
-        boundary=boundary, image=image, pitch_point=np.asarray(pitch, float).copy(),
-        alpha_deg=alpha, cl=cl_g.copy(), cl_circulation=cl_g, cl_pressure=cl_p,
-        cd_pressure=cd_p, cm=cm, cl_error_estimate=cl_err, cm_error_estimate=cm_err,
-        body_cl=body_cl, body_cm=body_cm, cp_min=cp_min, clearance=clearance,
-        body_names=tuple(o.name for o in outlines), surfaces=tuple(surfaces),
-        pitched=tuple(pitched),
-        cautions=CAUTIONS[boundary.kind])
-
-
-def mirrored_pair(outlines, plane_y: float) -> tuple:
-    """The bodies and their mirror images in ``y = plane_y`` as plain outlines.
-
-    Solved together in a freestream along x by the ordinary multi-body solver, the pair is the
-    explicit model of a wall at ``plane_y`` (the flow is symmetric, so the plane is a
-    streamline); used to check the image construction.
+    Solved together in a freestream along the plane by the ordinary multi-body solver, the pair is
+    the explicit model of a wall there (the flow is symmetric, so the plane is a streamline); used
+    to check the image construction.
     """
     out = list(outlines)
     for o in outlines:
-        z = reflect(o.points[:, 0] + 1j * o.points[:, 1], plane_y)[::-1]
+        z = image.reflect(o.points[:, 0] + 1j * o.points[:, 1])[::-1]
         out.append(Outline(f"{o.name} (image)", np.stack([z.real, z.imag], axis=1), o.kind,
                            o.source))
     return tuple(out)

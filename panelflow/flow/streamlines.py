@@ -43,7 +43,7 @@ import shapely
 from scipy.integrate import solve_ivp
 
 from panelflow.errors import InputError, SolveError
-from panelflow.flow.field import inside_bodies, unit_fields
+from panelflow.flow.field import inside_bodies, system_for, unit_fields
 from panelflow.geometry.outline import SMOOTH
 from panelflow.flow.solver import System
 from panelflow.flow.surface import stagnation_point
@@ -230,7 +230,7 @@ def _curvature(system: System, alpha_deg: float, z: np.ndarray, vel: np.ndarray,
     return kappa
 
 
-def field_dp_dn(system: System, streamline: Streamline, h: float | None = None) -> np.ndarray:
+def field_dp_dn(system, streamline: Streamline, h: float | None = None) -> np.ndarray:
     """Cross-stream pressure gradient ``dCp/dn`` at the line's points, from the Cp field.
 
     A central difference of ``Cp = 1 - |V|^2`` a distance ``h`` either side of each point along
@@ -239,8 +239,8 @@ def field_dp_dn(system: System, streamline: Streamline, h: float | None = None) 
 
     Parameters
     ----------
-    system : System
-        The system the line was traced in.
+    system : System or Result
+        The system the line was traced in (or the result holding it).
     streamline : Streamline
     h : float, optional
         Half the difference span; default 1 % of the median panel length.
@@ -250,6 +250,7 @@ def field_dp_dn(system: System, streamline: Streamline, h: float | None = None) 
     ndarray
         ``dCp/dn`` per unit length (NaN where the speed is zero or a point is inside a body).
     """
+    system = system_for(system, streamline.alpha_deg)
     h = DIFF_STEP * _length_scale(system) if h is None else float(h)
     if not (np.isfinite(h) and h > 0.0):
         raise InputError(f"difference step h must be a positive number, got {h!r}")
@@ -379,6 +380,7 @@ def trace(system: System, alpha_deg: float, seed, window, max_length: float | No
     """
     x0, x1, y0, y1 = _check_window(window)
     alpha = _check_alpha(alpha_deg)
+    system = system_for(system, alpha)
     z0 = _as_complex_point(seed)
     if direction not in (1, -1):
         raise InputError(f"direction must be +1 (downstream) or -1 (upstream), got {direction!r}")
@@ -436,10 +438,9 @@ def trace(system: System, alpha_deg: float, seed, window, max_length: float | No
     reasons = [END_WINDOW, END_BODY, END_STAGNATION]
     image = system.image
     if image is not None:  # a wall or free surface: the line ends where it reaches the plane
-        side = -1.0 if image.fluid_below else 1.0
 
         def reach_plane(_s, y):
-            return side * (y[1] - image.plane_y) - stop_distance
+            return float(image.height(complex(y[0], y[1]))) - stop_distance
 
         events.append(reach_plane)
         reasons.append(END_PLANE)
@@ -530,6 +531,7 @@ def streamlines(system: System, alpha_deg: float, window, n: int = 15, seeds=Non
     """
     win = _check_window(window)
     alpha = _check_alpha(alpha_deg)
+    system = system_for(system, alpha)
     if seeds is None:
         if int(n) != n or n < 1:
             raise InputError(f"number of streamlines must be a positive integer, got {n!r}")
@@ -597,6 +599,7 @@ def dividing_streamline(system: System, alpha_deg: float, body: int = 0, window=
     Streamline
     """
     alpha = _check_alpha(alpha_deg)
+    system = system_for(system, alpha)
     p = system.panels
     if int(body) != body or not 0 <= body < p.n_bodies:
         raise InputError(f"body index {body!r} out of range (0 .. {p.n_bodies - 1})")

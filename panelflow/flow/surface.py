@@ -61,8 +61,12 @@ class SurfaceSolution:
     stagnation : (n_alpha, n_bodies) complex position of the front stagnation point;
         ``x_stagnation`` its chordwise position x/c.
     unit_cl, unit_cm : (2,), (4,) components of cl and cm on the angle basis (see
-        :func:`unit_coefficients`).
+        :func:`unit_coefficients`); NaN when each angle has its own system.
     x_cp : (n_alpha,) centre of pressure as a chord fraction (NaN when the normal force is ~0).
+    angle_systems : tuple of System
+        Empty when one system serves every angle (free space); otherwise one system per angle
+        (a plane boundary, whose images depend on the angle). :meth:`system_at` picks the one
+        to use for the field and streamlines of an angle.
     """
 
     system: System = field(repr=False)
@@ -88,6 +92,7 @@ class SurfaceSolution:
     x_stagnation: np.ndarray = field(repr=False)
     unit_cl: np.ndarray = field(repr=False)
     unit_cm: np.ndarray = field(repr=False)
+    angle_systems: tuple = field(default=(), repr=False)
 
     def __post_init__(self):
         # results hand out views of these arrays (per angle, per body): keep them read-only
@@ -98,6 +103,10 @@ class SurfaceSolution:
     @property
     def panels(self):
         return self.system.panels
+
+    def system_at(self, i: int) -> System:
+        """The factorised system that gives the flow at angle number ``i``."""
+        return self.angle_systems[i] if self.angle_systems else self.system
 
     @property
     def cl(self) -> np.ndarray:
@@ -299,3 +308,26 @@ def stagnation_point(gk: np.ndarray, zk: np.ndarray, closed: bool) -> np.ndarray
     out = z[rows, j]
     out[dist[rows, j] < 0] = np.nan
     return out
+
+
+def stack(solutions, **replace) -> SurfaceSolution:
+    """One solution over all angles from single-angle solutions on the same panels.
+
+    Each element keeps its own system (``angle_systems``); arrays are joined along the angle
+    axis; the angle-basis components are NaN (they exist only for one system). ``replace``
+    overrides fields of the result (arrays of shape (n_alpha, ...)).
+    """
+    sols = list(solutions)
+    first = sols[0]
+    joined = {}
+    for name in first.__dataclass_fields__:
+        if name in ("system", "chord_line", "reference_point", "angle_systems"):
+            continue
+        if name in ("unit_cl", "unit_cm"):
+            joined[name] = np.full_like(getattr(first, name), np.nan)
+            continue
+        joined[name] = np.concatenate([np.asarray(getattr(s, name)) for s in sols], axis=0)
+    joined.update(replace)
+    return SurfaceSolution(system=first.system, chord_line=first.chord_line,
+                           reference_point=first.reference_point,
+                           angle_systems=tuple(s.system for s in sols), **joined)

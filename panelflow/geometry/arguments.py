@@ -49,7 +49,9 @@ def parse_angles(items) -> np.ndarray:
             raise InputError(f"{type(item).__name__} {item!r} is not an angle")
         for part in (p.strip() for p in item.split(",")):
             if part:
-                out.extend(_angle_part(part))
+                out.extend(_angle_part(part, MAX_ANGLES - len(out)))
+    if len(out) > MAX_ANGLES:
+        raise InputError(f"{len(out)} angles: at most {MAX_ANGLES} in all")
     if not out:
         raise InputError("no angle given")
     if not all(math.isfinite(a) for a in out):
@@ -57,7 +59,7 @@ def parse_angles(items) -> np.ndarray:
     return np.array(out, float)
 
 
-def _angle_part(part: str) -> list:
+def _angle_part(part: str, room: int = MAX_ANGLES) -> list:
     try:
         nums = [float(x) for x in part.split(":")]
     except ValueError:
@@ -70,8 +72,8 @@ def _angle_part(part: str) -> list:
     if step == 0 or (stop - start) * step < 0:
         raise InputError(f"{part}: STEP must be non-zero and go from START to STOP")
     count = int(math.floor((stop - start) / step + 1e-9)) + 1
-    if count > MAX_ANGLES:
-        raise InputError(f"{part}: {count} angles is too many")
+    if count > room:
+        raise InputError(f"{part}: {count} angles is too many (at most {MAX_ANGLES} in all)")
     return [start + step * k for k in range(count)]
 
 

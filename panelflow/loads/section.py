@@ -1,6 +1,6 @@
 """Dimensional pressure loads of one angle of attack: pascals and newtons for structural models.
 
-From an :class:`~panelflow.analysis.Analysis` and the :class:`~panelflow.conditions.fluids.Conditions`
+From a solved :class:`~panelflow.analysis.result.Result` and the :class:`~panelflow.conditions.fluids.Conditions`
 this module gives, per body, the pressure on every panel, the force on every panel, those forces
 split onto the panel end points, the totals, and a check that the totals equal the analysis
 coefficients times ``q c`` (times the span). Loads can also be moved onto the nodes of the user's
@@ -78,6 +78,7 @@ from pathlib import Path
 
 import numpy as np
 
+from panelflow.analysis.result import as_result
 from panelflow.errors import InputError
 from panelflow.conditions.fluids import Conditions
 from panelflow.geometry.outline import BLUNT, SHARP
@@ -419,19 +420,54 @@ def _nose_up(x, y, fx, fy, about) -> np.ndarray:
     return -np.sum((x - ax) * fy - (y - ay) * fx, axis=1)
 
 
-def _body_loads(f, i, k, analysis, scale, conditions, p0, ref, about) -> BodyLoads:
+@dataclass(frozen=True)
+class _Pressures:
+    """Cp the loads carry, per angle: at the nodes, the panel midpoints and the bases, and the
+    coefficients of the same integrals (checked against the loads)."""
+
+    node: np.ndarray
+    mid: np.ndarray
+    base: np.ndarray  # (n_alpha, n_bodies), NaN for bodies without a base
+    cl: np.ndarray
+    cd: np.ndarray
+    cm: np.ndarray
+    body_cl: np.ndarray
+    body_cd: np.ndarray
+    body_cm: np.ndarray
+    note: str
+
+
+def _pressures(result) -> _Pressures:
+    """The incompressible Cp, or with a Mach number the corrected Cp of the result's rule."""
+    f = result.fine
+    p = f.panels
+    c = result.compressibility
+    if c is None:
+        g = np.asarray(f.gamma)
+        mid = 1.0 - (0.5 * (g[:, p.start] + g[:, p.end])) ** 2
+        return _Pressures(np.asarray(f.cp), mid, np.asarray(f.cp_base), f.cl_pressure,
+                          f.cd_pressure, f.cm, f.body_cl, f.body_cd, f.body_cm,
+                          "incompressible pressures (Bernoulli's equation)")
+    base = np.full(np.shape(f.cp_base), np.nan)
+    if len(p.base_body):
+        base[:, p.base_body] = c.cp_base
+    return _Pressures(np.asarray(c.cp), np.asarray(c.cp_mid), base, c.cl_pressure,
+                      c.cd_pressure, c.cm, c.body_cl, c.body_cd, c.body_cm,
+                      f"pressures corrected to Mach {c.mach:g} by the {c.rule} rule")
+
+
+def _body_loads(f, cp, i, k, outline, scale, conditions, p0, ref, about) -> BodyLoads:
     """Cells, pressures and nodal loads of body ``k`` at angle ``i`` (see module docstring)."""
     p = f.panels
     q = conditions.dynamic_pressure
     b = conditions.span_factor
     n0, n1 = int(p.node_start[k]), int(p.node_stop[k])
     kind = p.kinds[k]
-    g = f.gamma[i, n0:n1]
-    pn = p0 + q * f.cp[i, n0:n1]
+    pn = p0 + q * cp.node[i, n0:n1]
     zn = scale * (p.nodes[n0:n1, 0] + 1j * p.nodes[n0:n1, 1])
     on = np.flatnonzero(p.body == k)
     a, e = p.start[on] - n0, p.end[on] - n0  # consecutive along the loop
-    pm = p0 + q * (1.0 - (0.5 * (g[a] + g[e])) ** 2)
+    pm = p0 + q * cp.mid[i, on]
     pa, pb = pn[a], pn[e]
     n = n1 - n0
     if kind == SHARP:
@@ -444,7 +480,7 @@ def _body_loads(f, i, k, analysis, scale, conditions, p0, ref, about) -> BodyLoa
     za, ze = zn[a], zn[e]
     if kind == BLUNT:
         # base: from the lower corner (last node) to the upper one (first), uniform pressure
-        p_base = p0 + q * float(f.cp_base[i, k])
+        p_base = p0 + q * float(cp.base[i, k])
         a, e = np.r_[a, n - 1], np.r_[e, 0]
         pa, pm, pb = np.r_[pa, p_base], np.r_[pm, p_base], np.r_[pb, p_base]
         za, ze = zn[a], zn[e]
@@ -461,7 +497,6 @@ def _body_loads(f, i, k, analysis, scale, conditions, p0, ref, about) -> BodyLoa
     rot = np.exp(-1j * np.radians(f.alpha_deg[i]))
     total = complex(nodal.sum())
     moments = _nose_up(x, y, nodal.real, nodal.imag, np.vstack([ref, about]))
-    outline = analysis.outlines[k]
     mid = 0.5 * (za + ze)
     return BodyLoads(
         name=p.names[k], kind=kind, x=x, y=y, pressure=pn, fx=nodal.real.copy(),
@@ -480,6 +515,7 @@ def _relative(diff, value, scale) -> float:
 
 
 def _checks(f, i, bodies, alpha, fscale, chord, ref, about, total_loads):
+    # ``f`` holds the coefficients of the pressures the loads carry (see _Pressures)
     """Equilibrium checks of the totals and of every body (see :class:`Equilibrium`)."""
     mscale = fscale * chord
     rot = np.exp(1j * np.radians(alpha))
@@ -492,7 +528,7 @@ def _checks(f, i, bodies, alpha, fscale, chord, ref, about, total_loads):
     def point_label(pt):
         return f"moment about ({pt[0]:.6g}, {pt[1]:.6g}) m"
 
-    groups = [(None, f.cl_pressure[i], f.cd_pressure[i], f.cm[i], total_loads)]
+    groups = [(None, f.cl[i], f.cd[i], f.cm[i], total_loads)]
     groups += [(bl.name, f.body_cl[i, k], f.body_cd[i, k], f.body_cm[i, k],
                 (bl.lift, bl.drag, bl.moment, bl.moments_about)) for k, bl in enumerate(bodies)]
     if len(bodies) == 1:
@@ -510,12 +546,16 @@ def _checks(f, i, bodies, alpha, fscale, chord, ref, about, total_loads):
     return tuple(out)
 
 
-def _cavitation(loads_cp_min, conditions, q):
-    """Cavitation number at the static pressure of the conditions (or at the surface)."""
+def _cavitation(loads_cp_min, conditions, q, cavitation=None):
+    """Cavitation number at the running depth of the result, at the static pressure of the
+    conditions, or at the surface."""
     fluid = conditions.fluid
     if fluid.vapour_pressure is None:
         return (), ()
-    if conditions.static_pressure is not None:
+    if cavitation is not None:
+        ps = cavitation.atmospheric_pressure + cavitation.density * 9.80665 * cavitation.depth
+        where = f"static pressure {ps:.6g} Pa at {cavitation.depth:g} m depth"
+    elif conditions.static_pressure is not None:
         ps, where = conditions.static_pressure, f"static pressure {conditions.static_pressure:g} Pa"
     elif fluid.ambient_pressure is not None:
         ps, where = fluid.ambient_pressure, (f"static pressure {fluid.ambient_pressure:g} Pa, "
@@ -531,7 +571,7 @@ def _cavitation(loads_cp_min, conditions, q):
     return (), (note,)
 
 
-def section_loads(analysis, conditions: Conditions, alpha_deg: float | None = None,
+def section_loads(result, conditions: Conditions, alpha_deg: float | None = None,
                   about=(), nodes: StructuralNodes | None = None,
                   node_tolerance: float | None = None,
                   moment_tolerance: float | None = MOMENT_TRANSFER_TOLERANCE) -> Loads:
@@ -539,8 +579,10 @@ def section_loads(analysis, conditions: Conditions, alpha_deg: float | None = No
 
     Parameters
     ----------
-    analysis : Analysis
-        The solved geometry (the loads use its fine solution).
+    result : Result or Analysis
+        The solved geometry (the loads use its fine solution). With a Mach number the pressures
+        are the compressibility-corrected ones of the result's rule; near a plane they are those
+        of the solution with the plane; coordinates are always the outlines' own frame.
     conditions : Conditions
         Fluid, speed, length scale, span and pressure reference.
     alpha_deg : float, optional
@@ -569,17 +611,19 @@ def section_loads(analysis, conditions: Conditions, alpha_deg: float | None = No
     """
     if not isinstance(conditions, Conditions):
         raise InputError("conditions must be a Conditions object")
-    i = _angle_index(analysis, alpha_deg)
-    f = analysis.fine
-    scale = conditions.length_scale(analysis.chord)
+    result = as_result(result)
+    i = _angle_index(result, alpha_deg)
+    f = result.fine
+    cp = _pressures(result)
+    scale = conditions.length_scale(result.chord)
     q = conditions.dynamic_pressure
     p0 = 0.0 if conditions.static_pressure is None else conditions.static_pressure
-    ref = scale * np.asarray(analysis.reference_point, float)
+    ref = scale * np.asarray(result.reference_point, float)
     about_m = scale * _points(about, "about")
     alpha = float(f.alpha_deg[i])
 
-    bodies = tuple(_body_loads(f, i, k, analysis, scale, conditions, p0, ref, about_m)
-                   for k in range(f.panels.n_bodies))
+    bodies = tuple(_body_loads(f, cp, i, k, result.outlines[k], scale, conditions, p0, ref,
+                               about_m) for k in range(f.panels.n_bodies))
     x = np.concatenate([bl.x for bl in bodies])
     y = np.concatenate([bl.y for bl in bodies])
     fx = np.concatenate([bl.fx for bl in bodies])
@@ -589,20 +633,22 @@ def section_loads(analysis, conditions: Conditions, alpha_deg: float | None = No
     moments = _nose_up(x, y, fx, fy, np.vstack([ref, about_m]))
     lift, drag = float((rot * total).imag), float((rot * total).real)
 
-    chord = analysis.chord * scale
+    chord = result.chord * scale
     fscale = q * chord * conditions.span_factor
-    checks = _checks(f, i, bodies, alpha, fscale, chord, ref, about_m,
+    checks = _checks(cp, i, bodies, alpha, fscale, chord, ref, about_m,
                      (lift, drag, moments[0], moments[1:]))
-    cl_c = float(f.cl_circulation[i])
-    cl_p = float(f.cl_pressure[i])
+    c = result.compressibility
+    cl_c = float(f.cl_circulation[i] if c is None else c.cl[i])
+    cl_p = float(cp.cl[i])
     notes = [f"lift from pressure integration {lift:.6g} {conditions.force_unit} (cl_p "
              f"{cl_p:.6f}); lift from circulation {cl_c * fscale:.6g} {conditions.force_unit} "
              f"(cl {cl_c:.6f}). They differ by {_percent(cl_p, cl_c)}, the panel discretisation "
-             "error; the loads carry the pressure lift so that they add up."]
-    cav_caution, cav_note = _cavitation(float(f.cp[i].min()), conditions, q)
+             f"error; the loads carry the pressure lift so that they add up, from {cp.note}."]
+    cav_caution, cav_note = _cavitation(float(np.nanmin(cp.node[i])), conditions, q,
+                                        result.cavitation)
     loads = Loads(conditions, alpha, scale, chord, q, ref, about_m, bodies, lift, drag,
-                  float(moments[0]), moments[1:], cl_c * fscale, cl_p, float(f.cd_pressure[i]),
-                  float(f.cm[i]), cl_c, Equilibrium(checks), LOAD_CAUTIONS + cav_caution,
+                  float(moments[0]), moments[1:], cl_c * fscale, cl_p, float(cp.cd[i]),
+                  float(cp.cm[i]), cl_c, Equilibrium(checks), LOAD_CAUTIONS + cav_caution,
                   tuple(notes) + cav_note)
     if nodes is not None:
         tol = None if node_tolerance is None else node_tolerance * scale

@@ -631,7 +631,8 @@ def _field_levels(cp, levels):
     return lev, extend
 
 
-def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, alpha_index=0):
+def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, alpha_index=0,
+                        plane=None):
     """The field figure, unsaved (see :func:`field_figure`).
 
     Returns
@@ -657,14 +658,18 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
     if invalid.all():
         raise InputError("field: no point outside the bodies")
     polys = _polygons(bodies)
-    lev, extend = _field_levels(cp, levels)
-    if polys and invalid.any():
+    image = None if plane is None else plane.image(float(field.alpha_deg[alpha_index]))
+    beyond = (np.zeros(shape, bool) if image is None
+              else image.beyond(gx + 1j * gy).reshape(shape))
+    lev, extend = _field_levels(cp[~beyond], levels)
+    if polys and (invalid & ~beyond).any():
         # Fill masked points with their nearest outside value before contouring: the bands then
         # run up to the body outline (drawn over them) instead of stopping a grid cell short.
         from scipy.ndimage import distance_transform_edt
 
         idx = distance_transform_edt(invalid, return_distances=False, return_indices=True)
-        cp = cp[tuple(idx)]
+        filled = cp[tuple(idx)]
+        cp = np.ma.masked_array(filled, beyond) if beyond.any() else filled
     else:
         cp = np.ma.masked_invalid(cp)
 
@@ -693,6 +698,16 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
     for pts in polys:
         ax.add_patch(Polygon(pts, closed=True, facecolor=BODY_FILL, edgecolor=INK,
                              linewidth=LINE["outline"], zorder=5))
+    if image is not None:
+        # the far side of the plane is no flow: a plain grey band and the plane's line
+        span = 2.0 * float(np.hypot(x1 - x0, y1 - y0)) + float(abs(image.point))
+        a, b = image.line(span)
+        out = -1j * image.direction * (1.0 if image.fluid_above else -1.0) * span
+        band = np.array([a, b, b + out, a + out])
+        ax.add_patch(Polygon(np.column_stack([band.real, band.imag]), closed=True,
+                             facecolor=BODY_FILL, edgecolor="none", zorder=3))
+        ax.plot([a.real, b.real], [a.imag, b.imag], color=INK, linewidth=LINE["outline"],
+                zorder=5)
     for line in streamlines:
         sx, sy = _stream_xy(line)
         ok = np.isfinite(sx) & np.isfinite(sy)
@@ -738,7 +753,7 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
 
 
 def field_figure(field, bodies, path, streamlines=(), overwrite: bool = False, levels=None,
-                 title: str | None = None, alpha_index: int = 0) -> Path:
+                 title: str | None = None, alpha_index: int = 0, plane=None) -> Path:
     """Write filled Cp contours of a grid flow field, with bodies and streamlines drawn over.
 
     Parameters
@@ -758,6 +773,9 @@ def field_figure(field, bodies, path, streamlines=(), overwrite: bool = False, l
     title : str, optional
     alpha_index : int
         Which of the field's angles to draw (default the first).
+    plane : PlaneEffect, optional
+        A result's wall or free surface (``Result.plane``): drawn as a line, with the far side
+        shaded as no flow.
 
     Returns
     -------
@@ -768,7 +786,7 @@ def field_figure(field, bodies, path, streamlines=(), overwrite: bool = False, l
     OutputError, InputError
     """
     check_figure_path(path, overwrite)
-    fig = _build_field_figure(field, bodies, streamlines, levels, title, alpha_index)
+    fig = _build_field_figure(field, bodies, streamlines, levels, title, alpha_index, plane)
     return _save(fig, path, overwrite)
 
 

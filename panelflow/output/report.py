@@ -10,14 +10,8 @@ import math
 
 import numpy as np
 
+from panelflow.analysis.result import as_result
 from panelflow.output.writers import CAUTION
-
-# Beyond these the attached-flow answer is doubtful for ordinary sections (common practice:
-# typical sections stall between about 10 and 16 degrees from zero lift, and a suction peak far
-# below Cp = -3 usually means leading-edge separation is near).
-_ALPHA_WARN_DEG = 10.0
-_CP_MIN_WARN = -3.0
-
 
 def _num(v, fmt):
     return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
@@ -31,23 +25,12 @@ def decimals(errors) -> int:
     return min(8, max(3, -int(math.floor(math.log10(max(finite))))))
 
 
-def model_notes(analysis) -> list[str]:
-    """Warnings on where the inviscid model is likely to stop being valid."""
-    notes = []
-    for r in analysis:
-        main = r.bodies[0]
-        flags = []
-        if abs(r.alpha_deg) > _ALPHA_WARN_DEG:
-            flags.append(f"|alpha| above {_ALPHA_WARN_DEG:g} deg: real sections may be near stall")
-        if main.cp_min < _CP_MIN_WARN:
-            flags.append(f"suction peak Cp {main.cp_min:.2f}: leading-edge separation likely")
-        if flags:
-            notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
-    return notes
-
-
-def solve_table(analysis) -> str:
-    """Per-angle table of totals, then per-body lines when there is more than one body."""
+def solve_table(result) -> str:
+    """The ``solve`` report: per-angle totals, per-body lines when there is more than one body,
+    then every margin the result carries (compressibility, cavitation, plane), the notes on the
+    model's limits and the caution."""
+    result = as_result(result)
+    analysis = result
     lines = []
     o = analysis.outlines
     names = ", ".join(b.name for b in o)
@@ -56,6 +39,8 @@ def solve_table(analysis) -> str:
     lines.append(f"panels: {', '.join(str(p.n_panels) for p in analysis.panellings)}   "
                  f"chord {analysis.chord:.6g}   moments about ({ref[0]:.6g}, {ref[1]:.6g}), "
                  "nose-up positive")
+    if result.plane is not None:
+        lines.append(_plane_line(result))
     head = (f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} "
             f"{'cl_p':>9} {'x_cp':>7} {'cp_min':>8} {'at x/c':>7} {'stag x/c':>8}")
     lines.append(head)
@@ -92,10 +77,50 @@ def solve_table(analysis) -> str:
     lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
     lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
                  "+/-: discretisation error estimate")
-    for note in model_notes(analysis):
-        lines.append("note: " + note)
-    lines.append("caution: " + CAUTION)
-    return "\n".join(lines) + "\n"
+    if result.plane is not None:
+        lines.append("near a plane, cl is the generalised circulation (Lagally) lift: the "
+                     "bodies and their image pull on each other")
+    text = "\n".join(lines) + "\n"
+    text += margins_text(result)
+    notes = [f"note: {n}" for n in result.notes if n not in _margin_warnings(result)]
+    cautions = [f"caution: {c}" for c in (*_cautions(result), CAUTION)]
+    return text + "".join(line + "\n" for line in notes + cautions)
+
+
+def _margin_warnings(result) -> tuple:
+    c = result.compressibility
+    return tuple(c.warnings) if c is not None else ()
+
+
+def _cautions(result) -> tuple:
+    out = ()
+    if result.cavitation is not None:
+        out += tuple(result.cavitation.cautions)
+    if result.plane is not None:
+        out += tuple(result.plane.cautions)
+    return out
+
+
+def _plane_line(result) -> str:
+    p = result.plane
+    side = "above" if p.boundary.above else "below"
+    return (f"{p.boundary.label} {p.boundary.distance:.6g} {side} ({p.pitch_point[0]:.6g}, "
+            f"{p.pitch_point[1]:.6g}), parallel to the freestream at every angle (coordinates "
+            "are the outlines' own)")
+
+
+def margins_text(result) -> str:
+    """The margin sections of a result, each only when it was computed."""
+    text = ""
+    if result.compressibility is not None:
+        text += compressibility_table(result.compressibility)
+    if result.cavitation is not None:
+        op = result.operating
+        text += cavitation_table(result.cavitation, result.alpha_deg, op.depth, op.fluid.name,
+                                 op.speed)
+    if result.plane is not None:
+        text += plane_table(result)
+    return text
 
 
 def check_table(reports, overlap_messages) -> str:
@@ -151,10 +176,9 @@ def field_summary(flow, analysis) -> str:
              f"Cp from {np.nanmin(cp[outside]):.4f} to {np.nanmax(cp[outside]):.4f}; "
              f"speed up to {np.nanmax(flow.speed[0][outside]):.4f} x freestream",
              f"cl {analysis.cl[0]:.5f}, cm {analysis.cm[0]:.5f}"]
-    if hasattr(analysis, "boundary"):
-        lines.append(f"near a {analysis.boundary.kind.replace('-', ' ')} at y = "
-                     f"{analysis.image.plane_y:.6g}: freestream along x, the bodies pitched by "
-                     f"{analysis.alpha_deg[0]:g} deg; points beyond the plane are masked")
+    plane = getattr(analysis, "plane", None)
+    if plane is not None:
+        lines.append(f"near a {plane.boundary.label}: points beyond the plane are masked")
     return "\n".join(lines) + "\n"
 
 
@@ -189,19 +213,16 @@ def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
     return "\n".join(lines) + "\n"
 
 
-def boundary_table(b) -> str:
-    """Coefficients of bodies near a wall or free surface (``solve --ground/--free-surface``)."""
-    kind = b.boundary.kind.replace("_", " ").replace("-", " ")
-    lines = [f"bodies: {', '.join(b.body_names)} near a {kind} at y = {b.image.plane_y:.6g}; "
-             "freestream along x, each angle pitches the bodies nose-up about "
-             f"({b.pitch_point[0]:.6g}, {b.pitch_point[1]:.6g})",
-             f"{'alpha':>7} {'cl':>10} {'+/-':>8} {'cm':>10} {'+/-':>8} {'cd_p':>9} {'cl_p':>9} "
-             f"{'cp_min':>8} {'clearance':>9}"]
-    for i, a in enumerate(b.alpha_deg):
-        lines.append(f"{a:7.2f} {b.cl[i]:10.5f} {_num(float(b.cl_error_estimate[i]), '8.1e')} "
-                     f"{b.cm[i]:10.5f} {_num(float(b.cm_error_estimate[i]), '8.1e')} "
-                     f"{b.cd_pressure[i]:9.1e} {b.cl_pressure[i]:9.5f} "
-                     f"{np.min(b.cp_min[i]):8.4f} {b.clearance[i]:9.4g}")
-    lines += ["", "cl: lift from the generalised circulation (Lagally); cl_p: pressure-integrated"]
-    lines += [f"caution: {c}" for c in (*b.cautions, CAUTION)]
+def plane_table(result) -> str:
+    """The plane's effect per angle: clearance and lift and moment against free space."""
+    p = result.plane
+    lines = ["", f"{p.boundary.label}: effect on the bodies",
+             f"{'alpha':>7} {'clearance':>9} {'cl':>9} {'cl free':>9} {'ratio':>7} {'cm':>9} "
+             f"{'cm free':>9}"]
+    for i, a in enumerate(result.alpha_deg):
+        lines.append(f"{a:7.2f} {p.clearance[i]:9.4g} {result.cl[i]:9.5f} {p.cl_free[i]:9.5f} "
+                     f"{_num(float(p.cl_ratio[i]), '7.4f')} {result.cm[i]:9.5f} "
+                     f"{p.cm_free[i]:9.5f}")
+    lines.append("clearance: smallest distance from the bodies to the plane (outline units); "
+                 "free: the same bodies without the plane")
     return "\n".join(lines) + "\n"

@@ -35,7 +35,9 @@ import numpy as np
 
 from panelflow.version import __version__
 from panelflow.errors import InputError
-from panelflow.output.writers import CAUTION, POLAR_COLUMNS, atomic_write_text, check_outputs
+from panelflow.analysis.result import as_result
+from panelflow.output.writers import (CAUTION, POLAR_COLUMNS, atomic_write_text, check_outputs,
+                                     polar_columns)
 
 __all__ = ["POLAR_COLUMNS", "Polar", "Table", "polar", "polar_rows", "tidy_table",
            "TABLE_WRITERS", "check_table_outputs", "write_table", "write_table_csv",
@@ -133,34 +135,35 @@ class Polar:
         return Table({name: self.column(name) for name in self.columns})
 
 
-def polar(analysis, label: str | None = None, extra=None) -> Polar:
-    """The polar of an :class:`~panelflow.analysis.Analysis` (all its angles).
+def polar(result, label: str | None = None, extra=None) -> Polar:
+    """The polar of a :class:`~panelflow.analysis.result.Result` (or Analysis), all its angles.
 
     Parameters
     ----------
-    analysis : Analysis
+    result : Result or Analysis
     label : str, optional
-        Default: the body names joined by ``", "`` (as ``panelflow compare`` labels a case).
+        Default: the result's label (the body names joined by ``", "``, as ``panelflow compare``
+        labels a case).
     extra : dict of str to array_like, optional
-        Further per-angle columns.
+        Further per-angle columns, after the margin columns the result carries (compressibility,
+        cavitation, plane; see :func:`panelflow.output.writers.polar_columns`).
 
     Returns
     -------
     Polar
-        The numbers equal those of :func:`panelflow.output.writers.polar_rows` (taken from the same
-        arrays, all angles at once).
+        The numbers equal those of :func:`panelflow.output.writers.polar_rows` (taken from the
+        same arrays, all angles at once).
     """
-    f = analysis.fine
-    names = tuple(o.name for o in analysis.outlines)
+    result = as_result(result)
+    columns = polar_columns(result)
+    margins = {k: v for k, v in columns.items() if k not in POLAR_COLUMNS}
+    margins.update(extra or {})
+    names = tuple(o.name for o in result.outlines)
     return Polar(
-        label=", ".join(names) if label is None else str(label),
-        alpha_deg=f.alpha_deg, cl=f.cl, cm=f.cm, cd_pressure=f.cd_pressure,
-        cp_min=np.asarray(f.cp_min)[:, 0], x_cp_min=np.asarray(f.x_cp_min)[:, 0],
-        x_stagnation=np.asarray(f.x_stagnation)[:, 0],
-        cl_error_estimate=analysis.cl_error_estimate, cm_error_estimate=analysis.cm_error_estimate,
-        chord=float(analysis.chord), reference_point=tuple(analysis.reference_point),
-        panels=tuple(pl.n_panels for pl in analysis.panellings), bodies=names,
-        extra=dict(extra or {}))
+        label=result.label if label is None else str(label),
+        **{k: columns[k] for k in POLAR_COLUMNS},
+        chord=float(result.chord), reference_point=tuple(result.reference_point),
+        panels=tuple(pl.n_panels for pl in result.panellings), bodies=names, extra=margins)
 
 
 def polar_rows(p: Polar):

@@ -12,6 +12,9 @@ import math
 from pathlib import Path
 
 from panelflow.version import __version__
+import numpy as np
+
+from panelflow.analysis.result import as_result, margin_columns, margin_record
 from panelflow.files import atomic_write, atomic_write_text
 from panelflow.files import check_outputs as _check_paths
 
@@ -41,11 +44,23 @@ def _floats(arr):
     return [_clean(float(v)) for v in arr]
 
 
-def analysis_record(analysis) -> dict:
-    """The machine-readable form of an :class:`~panelflow.analysis.Analysis`."""
+def analysis_record(result) -> dict:
+    """The machine-readable form of a :class:`~panelflow.analysis.result.Result` (or Analysis).
+
+    Keys: ``panelflow_version``, ``chord``, ``reference_point``, ``panels_per_body``, ``bodies``,
+    ``caution``, ``results`` (one object per angle: ``alpha_deg``, ``cl``, ``cm``,
+    ``cd_pressure``, ``cl_error_estimate``, ``cm_error_estimate``, ``cl_pressure``,
+    ``cl_circulation``, ``x_center_of_pressure``, the margin columns of
+    :func:`~panelflow.analysis.result.margin_columns` when computed, and ``surface``: per body
+    its coefficients and ``x``, ``y``, ``cp``); then ``conditions`` (the problem as solved),
+    ``notes`` and, when computed, ``compressibility``, ``cavitation``, ``plane`` and ``flap``
+    (see :func:`~panelflow.analysis.result.margin_record`).
+    """
+    result = as_result(result)
+    columns = margin_columns(result)
     results = []
-    for r in analysis:
-        results.append({
+    for i, r in enumerate(result):
+        row = {
             "alpha_deg": r.alpha_deg,
             "cl": _clean(r.cl),
             "cm": _clean(r.cm),
@@ -55,58 +70,93 @@ def analysis_record(analysis) -> dict:
             "cl_pressure": _clean(r.cl_pressure),
             "cl_circulation": _clean(r.cl_circulation),
             "x_center_of_pressure": _clean(r.x_center_of_pressure),
-            "surface": [{
-                "name": b.name,
-                "cl": _clean(b.cl), "cd_pressure": _clean(b.cd_pressure), "cm": _clean(b.cm),
-                "cp_min": _clean(b.cp_min), "x_cp_min": _clean(b.x_cp_min),
-                "x_stagnation": _clean(b.x_stagnation), "cp_base": _clean(b.cp_base),
-                "x": _floats(b.x), "y": _floats(b.y), "cp": _floats(b.cp),
-            } for b in r.bodies],
-        })
-    return {
+        }
+        row.update({name: _clean(float(values[i])) for name, values in columns.items()})
+        row["surface"] = [{
+            "name": b.name,
+            "cl": _clean(b.cl), "cd_pressure": _clean(b.cd_pressure), "cm": _clean(b.cm),
+            "cp_min": _clean(b.cp_min), "x_cp_min": _clean(b.x_cp_min),
+            "x_stagnation": _clean(b.x_stagnation), "cp_base": _clean(b.cp_base),
+            "x": _floats(b.x), "y": _floats(b.y), "cp": _floats(b.cp),
+        } for b in r.bodies]
+        if result.compressibility is not None:
+            nodes = [result.fine.panels.body_nodes(k) for k in range(len(r.bodies))]
+            for surf, sl in zip(row["surface"], nodes):
+                surf["cp_mach"] = _floats(result.compressibility.cp[i, sl])
+        results.append(row)
+    record = {
         "panelflow_version": __version__,
-        "chord": analysis.chord,
-        "reference_point": _floats(analysis.reference_point),
-        "panels_per_body": [pl.n_panels for pl in analysis.panellings],
-        "bodies": [o.name for o in analysis.outlines],
+        "chord": result.chord,
+        "reference_point": _floats(result.reference_point),
+        "panels_per_body": [pl.n_panels for pl in result.panellings],
+        "bodies": [o.name for o in result.outlines],
         "caution": CAUTION,
         "results": results,
+        "conditions": _plain(result.problem.record()),
+        "notes": list(result.notes),
     }
+    record.update(_plain(margin_record(result)))
+    return record
 
 
-def analysis_json(analysis) -> str:
-    return json.dumps(analysis_record(analysis), indent=1) + "\n"
+def _plain(value):
+    """Nested data with NaN as null (JSON has no NaN)."""
+    if isinstance(value, dict):
+        return {k: _plain(v) for k, v in value.items()}
+    if isinstance(value, (list, tuple)):
+        return [_plain(v) for v in value]
+    if isinstance(value, float):
+        return _clean(value)
+    return value
+
+
+def analysis_json(result) -> str:
+    return json.dumps(analysis_record(result), indent=1) + "\n"
 
 
 POLAR_COLUMNS = ("alpha_deg", "cl", "cm", "cd_pressure", "cp_min", "x_cp_min", "x_stagnation",
                  "cl_error_estimate", "cm_error_estimate")
 
 
-def polar_rows(analysis):
-    """One row per angle: totals, and the main body's minimum Cp and stagnation point."""
-    for r in analysis:
-        main = r.bodies[0]
-        yield (r.alpha_deg, r.cl, r.cm, r.cd_pressure, main.cp_min, main.x_cp_min,
-               main.x_stagnation, r.cl_error_estimate, r.cm_error_estimate)
+def polar_columns(result) -> dict:
+    """Per-angle columns of a result: :data:`POLAR_COLUMNS`, then its margin columns."""
+    result = as_result(result)
+    f = result.fine
+    out = {"alpha_deg": f.alpha_deg, "cl": f.cl, "cm": f.cm, "cd_pressure": f.cd_pressure,
+           "cp_min": np.asarray(f.cp_min)[:, 0], "x_cp_min": np.asarray(f.x_cp_min)[:, 0],
+           "x_stagnation": np.asarray(f.x_stagnation)[:, 0],
+           "cl_error_estimate": result.cl_error_estimate,
+           "cm_error_estimate": result.cm_error_estimate}
+    out.update(margin_columns(result))
+    return out
+
+
+def polar_rows(result):
+    """One row per angle: :data:`POLAR_COLUMNS` then the margin columns (see
+    :func:`polar_columns`)."""
+    cols = list(polar_columns(result).values())
+    for i in range(len(cols[0])):
+        yield tuple(float(c[i]) for c in cols)
 
 
 @register_writer(".json")
-def write_json(analysis, path, overwrite=False) -> Path:
-    """Write the full record (coefficients and surface Cp) as JSON."""
-    return atomic_write_text(path, analysis_json(analysis), overwrite)
+def write_json(result, path, overwrite=False) -> Path:
+    """Write the full record (coefficients, margins and surface Cp) as JSON."""
+    return atomic_write_text(path, analysis_json(result), overwrite)
 
 
 @register_writer(".csv")
-def write_polar_csv(analysis, path, overwrite=False) -> Path:
-    """Write one row per angle (see ``POLAR_COLUMNS``) as CSV with a commented header."""
+def write_polar_csv(result, path, overwrite=False) -> Path:
+    """Write one row per angle (see :func:`polar_columns`) as CSV with a commented header."""
+    result = as_result(result)
     buf = io.StringIO()
-    buf.write(f"# panelflow {__version__}; chord {analysis.chord:.9g}; moments about "
-              f"({analysis.reference_point[0]:.9g}, {analysis.reference_point[1]:.9g})\n")
+    buf.write(f"# panelflow {__version__}; chord {result.chord:.9g}; moments about "
+              f"({result.reference_point[0]:.9g}, {result.reference_point[1]:.9g})\n")
     buf.write(f"# {CAUTION}\n")
     w = csv.writer(buf, lineterminator="\n")
-    w.writerow(POLAR_COLUMNS)
-    for row in polar_rows(analysis):
-        w.writerow([f"{v:.10g}" for v in row])
+    w.writerow(list(polar_columns(result)))
+    for row in polar_rows(result):
+        w.writerow([f"{v:.10g}" if math.isfinite(v) else "" for v in row])
     return atomic_write_text(path, buf.getvalue(), overwrite)
 
 
@@ -115,7 +165,7 @@ def check_outputs(paths, overwrite=False, registry=None, what="output", expand=N
     _check_paths(paths, WRITERS if registry is None else registry, overwrite, what, expand)
 
 
-def write_result(analysis, path, overwrite=False) -> Path:
-    """Write ``analysis`` in the format given by the extension of ``path``."""
+def write_result(result, path, overwrite=False) -> Path:
+    """Write a result (or an inviscid Analysis) in the format given by the extension of ``path``."""
     check_outputs([path], overwrite)
-    return WRITERS[Path(path).suffix.lower()](analysis, path, overwrite)
+    return WRITERS[Path(path).suffix.lower()](result, path, overwrite)

@@ -34,8 +34,10 @@ Top level
                     this gap) and ``radius`` (corner rounding, default 0.01).
 
 ``[conditions]``
-    ``alpha``       required: angles of attack in degrees; a number, a text
-                    ``"START:STOP:STEP"`` (STOP included) or a list of both.
+    ``alpha``       angles of attack in degrees; a number, a text ``"START:STOP:STEP"`` (STOP
+                    included) or a list of both; or instead
+    ``cl``          a target lift coefficient: each section is solved at the angle that gives
+                    it (outputs below may then leave out ``alpha``).
     ``panels``      panels per body (default 200, at least 8).
     ``keep_points`` true: use the given points as panel ends (no re-panelling).
     ``reference_point``  ``[X, Y]`` moment reference point (default each section's quarter chord).
@@ -48,6 +50,12 @@ Top level
     ``depth``       running depth in metres (with a liquid ``fluid``): adds
                     ``inception_speed`` and, with ``speed``, ``cavitation_number`` and
                     ``cavitation_margin`` columns.
+    ``ground``      a wall this far below the main body's quarter chord (outline units), or
+    ``free_surface`` a free surface this far above it: adds ``plane_clearance``,
+                    ``cl_free_space`` and ``cm_free_space`` columns; every output (figures,
+                    fields, loads) is computed with the plane.
+    ``unit`` / ``chord``  the outline's length unit or the main chord in metres: the default
+                    scale of the load outputs.
 
 ``[outputs]`` (file names inside the output folder; no folders)
     ``table``       a name or a list of names, ``.csv`` or ``.json``: the tidy table, one row
@@ -81,9 +89,10 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from panelflow.geometry.arguments import parse_angles
+from panelflow.analysis.problem import Flap, OperatingPoint
 from panelflow.errors import InputError, PanelflowError
-from panelflow.study.runner import BodySource, Flap, SectionTask, file_sha256
+from panelflow.geometry.arguments import parse_angles
+from panelflow.study.runner import BodySource, SectionTask, file_sha256
 
 __all__ = ["KeyLines", "Case", "Outputs", "PolarFigureOutput", "CpFigureOutput", "FieldOutput",
            "LoadsOutput", "load_case", "parse_case", "parse_angle_values", "KEYS"]
@@ -100,8 +109,9 @@ KEYS = {
     "section": ("label", "spec", "file", "body", "name", "scale", "pitch", "move", "flap"),
     "body": _BODY_KEYS,
     "flap": ("hinge", "angle", "gap", "radius"),
-    "conditions": ("alpha", "panels", "keep_points", "reference_point", "error_estimate",
-                   "fluid", "density", "speed", "mach", "mach_rule", "depth"),
+    "conditions": ("alpha", "cl", "panels", "keep_points", "reference_point", "error_estimate",
+                   "fluid", "density", "speed", "mach", "mach_rule", "depth", "unit", "chord",
+                   "ground", "free_surface"),
     "outputs": ("table", "polar_figure", "cp_figure", "field", "loads"),
     "polar_figure": ("file", "sections", "title"),
     "cp_figure": ("file", "alpha", "sections", "title"),
@@ -672,26 +682,33 @@ def _fluid(ck: _Checker, table: dict, path):
 
 
 def _conditions(ck: _Checker, doc: dict):
-    """(task settings, resolved conditions record, fluid, density, speed)."""
+    """(task settings, resolved conditions record, fluid, density, speed, unit, chord)."""
     from panelflow.conditions.compressibility import RULES
+    from panelflow.flow.images import Boundary
 
     path = ("conditions",)
     if "conditions" not in doc:
         raise ck.error((), "no [conditions] table: give at least alpha = \"START:STOP:STEP\"")
     c = ck.table(doc["conditions"], path)
     ck.keys(c, "conditions", path)
-    if "alpha" not in c:
-        raise ck.error(path, "missing key 'alpha' (angles of attack, e.g. alpha = \"-4:10:1\")")
-    raw = c["alpha"]
-    alpha = []
-    for k, item in enumerate(raw if isinstance(raw, list) else [raw]):
-        where = path + ("alpha",) + ((k,) if isinstance(raw, list) else ())
-        try:
-            alpha += parse_angle_values(item)
-        except InputError as exc:
-            raise ck.error(where, str(exc)) from None
-    if not alpha:
-        raise ck.error(path + ("alpha",), "no angle given")
+    if "alpha" in c and "cl" in c:
+        raise ck.error(path + ("cl",), "give either 'alpha' or 'cl', not both")
+    alpha, target = [], None
+    if "cl" in c:
+        target = ck.number(c["cl"], path + ("cl",))
+    elif "alpha" not in c:
+        raise ck.error(path, "missing key 'alpha' (angles of attack, e.g. alpha = \"-4:10:1\"), "
+                       "or 'cl' (a target lift coefficient)")
+    else:
+        raw = c["alpha"]
+        for k, item in enumerate(raw if isinstance(raw, list) else [raw]):
+            where = path + ("alpha",) + ((k,) if isinstance(raw, list) else ())
+            try:
+                alpha += parse_angle_values(item)
+            except InputError as exc:
+                raise ck.error(where, str(exc)) from None
+        if not alpha:
+            raise ck.error(path + ("alpha",), "no angle given")
     panels = ck.integer(c["panels"], path + ("panels",), MIN_PANELS) if "panels" in c else 200
     keep = ck.boolean(c["keep_points"], path + ("keep_points",)) if "keep_points" in c else False
     ref = (ck.numbers(c["reference_point"], path + ("reference_point",), 2, "[X, Y]")
@@ -720,15 +737,47 @@ def _conditions(ck: _Checker, doc: dict):
         if fluid is None or get_fluid(fluid).vapour_pressure is None:
             raise ck.error(path + ("depth",), "the cavitation check needs fluid = "
                            "\"sea-water\" or \"fresh-water\"")
-    settings = dict(alpha_deg=tuple(alpha), n_panels=None if keep else panels,
-                    reference_point=ref, error_estimate=est, mach=mach, mach_rule=rule,
-                    depth=depth, fluid=fluid if depth is not None else None,
-                    speed=speed if depth is not None else None)
-    record = {"alpha_deg": alpha, "panels": None if keep else panels, "keep_points": keep,
-              "reference_point": list(ref) if ref else None, "error_estimate": est,
-              "fluid": fluid, "density": density, "speed": speed, "mach": mach,
-              "mach_rule": rule if mach is not None else None, "depth": depth}
-    return settings, record, fluid, density, speed
+    if "unit" in c and "chord" in c:
+        raise ck.error(path + ("unit",), "give either 'unit' or 'chord', not both")
+    unit = _unit(ck, c, path)
+    chord = (ck.number(c["chord"], path + ("chord",), 0.0, low_open=True) if "chord" in c
+             else None)
+    if "ground" in c and "free_surface" in c:
+        raise ck.error(path + ("free_surface",), "give either 'ground' or 'free_surface', not "
+                       "both")
+    plane = None
+    if "ground" in c:
+        plane = Boundary.ground(ck.number(c["ground"], path + ("ground",), 0.0, low_open=True))
+    elif "free_surface" in c:
+        plane = Boundary.free_surface(ck.number(c["free_surface"], path + ("free_surface",),
+                                                0.0, low_open=True))
+    try:
+        operating = OperatingPoint(
+            alpha_deg=tuple(alpha), target_cl=target, mach=mach, mach_rule=rule,
+            fluid=fluid if depth is not None else None, speed=speed if depth is not None else None,
+            depth=depth, plane=plane)
+    except InputError as exc:
+        raise ck.error(path, str(exc)) from None
+    settings = dict(operating=operating, panels=None if keep else panels, reference_point=ref,
+                    error_estimate=est)
+    record = {"alpha_deg": alpha, "cl": target, "panels": None if keep else panels,
+              "keep_points": keep, "reference_point": list(ref) if ref else None,
+              "error_estimate": est, "fluid": fluid, "density": density, "speed": speed,
+              "mach": mach, "mach_rule": rule if mach is not None else None, "depth": depth,
+              "unit": unit, "chord": chord,
+              "plane": ({"kind": plane.kind, "distance": plane.distance} if plane else None)}
+    return settings, record, fluid, density, speed, unit, chord
+
+
+def _unit(ck: _Checker, table: dict, path):
+    from panelflow.conditions.fluids import UNITS
+
+    if "unit" not in table:
+        return None
+    unit = ck.text(table["unit"], path + ("unit",))
+    if unit not in UNITS:
+        raise ck.error(path + ("unit",), f"unknown unit {unit!r}; use one of {', '.join(UNITS)}")
+    return unit
 
 
 def _labels(ck: _Checker, value, path, labels) -> tuple:
@@ -756,7 +805,8 @@ def _section_of(ck: _Checker, t: dict, path, labels) -> str:
     return labels[0]
 
 
-def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed) -> Outputs:
+def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, chord=None,
+             target=False) -> Outputs:
     from panelflow.output.field_files import FIELD_WRITERS
     from panelflow.output.load_files import LOAD_WRITERS
     from panelflow.output.figures import FIGURE_FORMATS
@@ -798,6 +848,8 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed) -> Outputs:
 
     def alpha(t, p):
         if "alpha" not in t:
+            if target:  # the sections' own target-lift angles
+                return None
             raise ck.error(p, "missing key 'alpha' (one angle of attack in degrees)")
         return ck.number(t["alpha"], p + ("alpha",))
 
@@ -834,8 +886,6 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed) -> Outputs:
             else DEFAULT_STREAMLINES))
     loads = []
     for t, p in entries("loads"):
-        from panelflow.conditions.fluids import UNITS
-
         f_name, f_density = _fluid(ck, t, p)
         if f_name is None and f_density is None:
             f_name, f_density = fluid, density
@@ -848,12 +898,10 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed) -> Outputs:
             raise ck.error(p, "loads need a speed: give 'speed' here or in [conditions]")
         if "chord" in t and "unit" in t:
             raise ck.error(p + ("unit",), "give either 'chord' or 'unit', not both")
-        unit = None
-        if "unit" in t:
-            unit = ck.text(t["unit"], p + ("unit",))
-            if unit not in UNITS:
-                raise ck.error(p + ("unit",), f"unknown unit {unit!r}; use one of "
-                               f"{', '.join(UNITS)}")
+        l_unit, l_chord = _unit(ck, t, p), (
+            ck.number(t["chord"], p + ("chord",), 0.0, low_open=True) if "chord" in t else None)
+        if l_unit is None and l_chord is None:
+            l_unit, l_chord = unit, chord
         about = ()
         if "about" in t:
             pts = t["about"]
@@ -863,10 +911,7 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed) -> Outputs:
                           for k, q in enumerate(pts))
         loads.append(LoadsOutput(
             name(t["file"], p + ("file",), LOAD_WRITERS, "load file"), alpha(t, p),
-            _section_of(ck, t, p, labels), v, f_name, f_density,
-            ck.number(t["chord"], p + ("chord",), 0.0, low_open=True) if "chord" in t
-            else None,
-            unit,
+            _section_of(ck, t, p, labels), v, f_name, f_density, l_chord, l_unit,
             ck.number(t["span"], p + ("span",), 0.0, low_open=True) if "span" in t else None,
             about))
         if Path(loads[-1].file).suffix.lower() == ".inp":
@@ -910,10 +955,11 @@ def parse_case(text: str, path) -> Case:
         output = Path(out) if os.path.isabs(out) else base / out
     else:
         output = base / f"{p.stem}_results"
-    settings, record, fluid, density, speed = _conditions(ck, doc)
+    settings, record, fluid, density, speed, unit, chord = _conditions(ck, doc)
     sections = _sections(ck, doc, base, settings)
     tasks = tuple(t for t, _ in sections)
-    outputs = _outputs(ck, doc, [t.label for t in tasks], fluid, density, speed)
+    outputs = _outputs(ck, doc, [t.label for t in tasks], fluid, density, speed, unit, chord,
+                       settings["operating"].target_cl is not None)
     import hashlib
 
     return Case(p, hashlib.sha256(text.encode("utf-8")).hexdigest(), title, output, tasks,

@@ -37,11 +37,16 @@ from pathlib import Path
 
 import numpy as np
 
-from panelflow.version import __version__
-from panelflow.geometry.arguments import transformed, unique_names
-from panelflow.errors import InputError, OutputError, PanelflowError
+from dataclasses import replace
 
-__all__ = ["BodySource", "Flap", "SectionTask", "section_tasks", "build_bodies", "solve_task",
+from panelflow.analysis.problem import Flap, OperatingPoint, Problem
+from panelflow.analysis.solve import solve
+from panelflow.errors import InputError, OutputError, PanelflowError
+from panelflow.geometry.arguments import transformed, unique_names
+from panelflow.version import __version__
+
+__all__ = ["BodySource", "Flap", "SectionTask", "section_tasks", "split_settings",
+           "build_bodies", "task_problem", "solve_task",
            "run_task", "run_study", "make_executor", "open_executor", "file_sha256",
            "manifest_record", "write_manifest", "RunReport", "run_case", "MANIFEST_NAME"]
 
@@ -95,22 +100,34 @@ class BodySource:
         return rec
 
 
-@dataclass(frozen=True)
-class Flap:
-    """A flap deflection of a section's first body (see :mod:`panelflow.geometry.flap`).
+_PROBLEM_KEYS = ("panels", "error_estimate", "reference_point", "flap")
 
-    ``gap`` None: a plain flap (one body); a number: a separate flap body with that gap.
+
+def split_settings(alpha_deg=None, **settings):
+    """(OperatingPoint, problem settings) from the keywords of the earlier flat interface.
+
+    ``alpha_deg`` may be an :class:`OperatingPoint` already; ``n_panels`` is read as ``panels``;
+    every other keyword is an :class:`OperatingPoint` field (``mach``, ``depth``, ``fluid``, ...).
     """
-
-    hinge: float
-    angle: float
-    gap: float | None = None
-    radius: float = 0.01
+    if "n_panels" in settings:
+        settings["panels"] = settings.pop("n_panels")
+    problem = {k: settings.pop(k) for k in _PROBLEM_KEYS if k in settings}
+    if isinstance(alpha_deg, OperatingPoint):
+        if settings:
+            alpha_deg = replace(alpha_deg, **settings)
+        return alpha_deg, problem
+    if alpha_deg is not None and not isinstance(alpha_deg, str):
+        settings["alpha_deg"] = tuple(np.atleast_1d(np.asarray(alpha_deg, float)))
+    elif alpha_deg is not None:
+        settings["alpha_deg"] = alpha_deg
+    if settings.get("mach_rule") is None:
+        settings.pop("mach_rule", None)
+    return OperatingPoint(**settings), problem
 
 
 @dataclass(frozen=True)
 class SectionTask:
-    """One geometry at a list of angles: the unit of work of a study (plain, picklable data).
+    """One geometry under one operating point: the unit of work of a study (picklable data).
 
     Attributes
     ----------
@@ -118,60 +135,50 @@ class SectionTask:
         The section's name in tables and figures (unique within a study).
     bodies : tuple of BodySource
         The first body is the main body (reference chord).
-    alpha_deg : tuple of float
-    n_panels : int or None
+    operating : OperatingPoint
+        Angles (or target lift) and conditions (Mach number, fluid, speed, depth, plane).
+    panels : int or None
         Panels per body; None keeps the given points.
+    error_estimate : bool
     reference_point : (float, float) or None
         Moment reference point; default the quarter chord.
-    error_estimate : bool
     flap : Flap or None
-    mach : float or None
-        With a Mach number the polar gains ``cl_mach``, ``cm_mach``, ``cp_min_mach`` and
-        ``mach_critical`` (:func:`panelflow.conditions.compressibility.correct`).
-    mach_rule : str
-    depth : float or None
-        Running depth in metres: the polar gains ``inception_speed`` (and with ``speed``,
-        ``cavitation_number`` and ``cavitation_margin``); needs a liquid ``fluid`` preset.
-    fluid : str or None
-    speed : float or None
     """
 
     label: str
     bodies: tuple
-    alpha_deg: tuple
-    n_panels: int | None = 200
-    reference_point: tuple | None = None
+    operating: OperatingPoint
+    panels: int | None = 200
     error_estimate: bool = True
+    reference_point: tuple | None = None
     flap: Flap | None = None
-    mach: float | None = None
-    mach_rule: str = "karman-tsien"
-    depth: float | None = None
-    fluid: str | None = None
-    speed: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "bodies", tuple(self.bodies))
-        object.__setattr__(self, "alpha_deg", tuple(float(a) for a in self.alpha_deg))
         if not self.bodies:
             raise InputError(f"section {self.label!r}: no body")
-        if not self.alpha_deg:
-            raise InputError(f"section {self.label!r}: no angle of attack")
+        if not isinstance(self.operating, OperatingPoint):
+            raise InputError(f"section {self.label!r}: operating must be an OperatingPoint")
+
+    @classmethod
+    def of(cls, label: str, bodies, alpha_deg=None, **settings) -> SectionTask:
+        """A task from angles and flat keywords (``n_panels``, ``mach``, ``depth``, ...)."""
+        operating, problem = split_settings(alpha_deg, **settings)
+        return cls(label, tuple(bodies), operating, **problem)
+
+    @property
+    def alpha_deg(self) -> tuple:
+        return self.operating.alpha_deg
 
     def record(self, base=None) -> dict:
         """Plain settings for the manifest (file paths relative to ``base``)."""
-        rec = {"label": self.label, "bodies": [b.record(base) for b in self.bodies]}
-        for f in fields(self):
-            if f.name in ("label", "bodies", "alpha_deg"):
-                continue
-            value = getattr(self, f.name)
-            if value is None or (f.name == "mach_rule" and self.mach is None):
-                continue
-            if isinstance(value, Flap):
-                value = {k.name: getattr(value, k.name) for k in fields(value)}
-            elif isinstance(value, tuple):
-                value = list(value)
-            rec[f.name] = value
-        rec["alpha_deg"] = list(self.alpha_deg)
+        rec = {"label": self.label, "bodies": [b.record(base) for b in self.bodies],
+               "panels": self.panels, "error_estimate": self.error_estimate}
+        if self.reference_point is not None:
+            rec["reference_point"] = list(self.reference_point)
+        if self.flap is not None:
+            rec["flap"] = self.flap.record()
+        rec.update(self.operating.record())
         return rec
 
 
@@ -213,11 +220,12 @@ def section_tasks(sources, alpha_deg, base=None, **settings) -> list:
     Parameters
     ----------
     sources : sequence of str
-    alpha_deg : sequence of float
+    alpha_deg : sequence of float or OperatingPoint
     base : path, optional
         Folder of relative file paths.
     **settings
-        Further :class:`SectionTask` fields (``n_panels``, ``reference_point``, ...).
+        Further settings: :class:`SectionTask` fields (``panels`` or ``n_panels``,
+        ``reference_point``, ...) and :class:`OperatingPoint` fields (``mach``, ``depth``, ...).
 
     Returns
     -------
@@ -226,6 +234,7 @@ def section_tasks(sources, alpha_deg, base=None, **settings) -> list:
     from panelflow.geometry.families import expand_arguments
     from panelflow.geometry.sections import parse_spec
 
+    operating, problem = split_settings(alpha_deg, **settings)
     tasks = []
     for member in expand_arguments(list(sources), base):
         if "@" in member and not os.path.exists(member):
@@ -239,7 +248,7 @@ def section_tasks(sources, alpha_deg, base=None, **settings) -> list:
                 raise InputError(f"{member}: no such file, and not a section spec")
             path = os.path.abspath(path)
             body, label = BodySource(path, True, file_sha256(path)), Path(path).stem
-        tasks.append(SectionTask(label, (body,), tuple(alpha_deg), **settings))
+        tasks.append(SectionTask(label, (body,), operating, **problem))
     return tasks
 
 
@@ -273,67 +282,31 @@ def _transformed(outlines, body: BodySource, label: str) -> list:
     return out
 
 
-def build_bodies(task: SectionTask):
-    """The outlines of a task (read or built, transformed, flap applied, names made unique).
-
-    Returns
-    -------
-    (outlines, chord_line) : list of Outline, tuple or None
-        ``chord_line`` is the undeflected chord line when a flap is deflected, else None.
-    """
+def build_bodies(task: SectionTask) -> list:
+    """The outlines of a task: read or built, transformed, names made unique (no flap yet)."""
     bodies = []
     for body in task.bodies:
         bodies.extend(_transformed(_load(body, task.label), body, task.label))
-    unique = unique_names(bodies)  # as the command line does: a repeated name gets -2, -3, ...
-    if task.flap is None:
-        return unique, None
-    from panelflow.geometry.flap import plain_flap, slotted_flap
+    return unique_names(bodies)  # as the command line does: a repeated name gets -2, -3, ...
 
-    fl = task.flap
-    if fl.gap is not None:
-        fs = slotted_flap(unique[0], fl.hinge, fl.angle, gap=fl.gap, radius=fl.radius)
-    else:
-        fs = plain_flap(unique[0], fl.hinge, fl.angle, radius=fl.radius)
-    return [*fs.outlines, *unique[1:]], fs.chord_line
+
+def task_problem(task: SectionTask, alpha_deg=None, error_estimate: bool | None = None) -> Problem:
+    """The :class:`Problem` of a task (at its angles, or at ``alpha_deg``)."""
+    operating = task.operating if alpha_deg is None else task.operating.with_angles(alpha_deg)
+    est = task.error_estimate if error_estimate is None else error_estimate
+    return Problem(tuple(build_bodies(task)), operating, panels=task.panels,
+                   error_estimate=est, reference_point=task.reference_point, flap=task.flap,
+                   label=task.label)
 
 
 def solve_task(task: SectionTask, alpha_deg=None, error_estimate: bool | None = None):
-    """Build a task's geometry and analyse it (at its angles, or at ``alpha_deg``).
+    """Build a task's geometry and solve it (at its angles, or at ``alpha_deg``).
 
     Returns
     -------
-    Analysis
+    Result
     """
-    from panelflow.analysis.inviscid import analyse
-
-    outlines, chord_line = build_bodies(task)
-    alphas = task.alpha_deg if alpha_deg is None else alpha_deg
-    est = task.error_estimate if error_estimate is None else error_estimate
-    return analyse(outlines, alphas, n_panels=task.n_panels,
-                   reference_point=task.reference_point, error_estimate=est,
-                   chord_line=chord_line)
-
-
-def _extra_columns(task: SectionTask, analysis) -> dict:
-    extra = {}
-    if task.mach is not None:
-        from panelflow.conditions.compressibility import correct
-
-        c = correct(analysis, task.mach, task.mach_rule)
-        extra.update(cl_mach=c.cl, cm_mach=c.cm, cp_min_mach=np.asarray(c.cp_min)[:, 0],
-                     mach_critical=c.critical_mach)
-    if task.depth is not None:
-        from panelflow.conditions.cavitation import assess_in
-
-        if task.fluid is None:
-            raise InputError(f"section {task.label!r}: depth needs a fluid (sea-water or "
-                             "fresh-water) for the cavitation check")
-        cav = assess_in(analysis, task.depth, task.fluid, speed=task.speed)
-        extra["inception_speed"] = cav.section_inception_speed
-        if task.speed is not None:
-            extra["cavitation_number"] = np.full(len(cav.alpha_deg), cav.sigma)
-            extra["cavitation_margin"] = cav.margin
-    return extra
+    return solve(task_problem(task, alpha_deg, error_estimate))
 
 
 def run_task(task: SectionTask):
@@ -347,8 +320,7 @@ def run_task(task: SectionTask):
     from panelflow.output.tables import polar
 
     try:
-        analysis = solve_task(task)
-        return polar(analysis, task.label, _extra_columns(task, analysis))
+        return polar(solve_task(task), task.label)
     except PanelflowError as exc:
         text = str(exc)
         prefix = f"section {task.label!r}"
@@ -636,6 +608,15 @@ def _task(case, label):
     raise InputError(f"no section {label!r}")  # cases.py checks labels; a safeguard
 
 
+def _angles(case, label, alpha):
+    """The angle an output asks for, or None: the section's own target-lift angle."""
+    if alpha is not None:
+        return [alpha]
+    if _task(case, label).operating.target_cl is None:
+        raise InputError(f"an output of section {label!r} needs an angle of attack")
+    return None
+
+
 def _planned(case, folder: Path) -> dict:
     """Output kind -> list of full paths, for the checks before any work."""
     out = case.outputs
@@ -742,12 +723,12 @@ def _figures(case, folder, polars, overwrite) -> list:
         written.append(polar_figure(chosen, None, folder / f.file, overwrite, title=f.title))
     for f in case.outputs.cp_figures:
         labels = f.sections or [p.label for p in polars]
-        analyses = [solve_task(_task(case, lab), [f.alpha]) for lab in labels]
+        analyses = [solve_task(_task(case, lab), _angles(case, lab, f.alpha)) for lab in labels]
         if len(analyses) == 1:
-            written.append(surface_cp_figure(analyses[0], folder / f.file, f.alpha,
+            written.append(surface_cp_figure(analyses[0], folder / f.file,
                                              overwrite=overwrite, title=f.title))
         else:
-            written.append(compare_cp_figure(analyses, labels, f.alpha, folder / f.file,
+            written.append(compare_cp_figure(analyses, labels, None, folder / f.file,
                                              overwrite=overwrite, title=f.title))
     return written
 
@@ -759,20 +740,22 @@ def _fields(case, folder, overwrite) -> list:
     written = []
     for f in case.outputs.fields:
         task = _task(case, f.section)
-        analysis = solve_task(task, [f.alpha], error_estimate=False)
-        window = f.window or default_window(analysis.outlines)
+        result = solve_task(task, _angles(case, f.section, f.alpha), error_estimate=False)
+        alpha = float(result.alpha_deg[0])
+        window = f.window or default_window(result.outlines)
         points, shape = grid_points(window, f.resolution)
-        flow = flow_field(analysis.fine.system, points, [f.alpha], shape)
-        written.append(write_field(flow, folder / f.file, outlines=analysis.outlines,
+        flow = flow_field(result, points, [alpha], shape)
+        written.append(write_field(flow, folder / f.file, outlines=result.outlines,
                                    overwrite=overwrite))
         if f.figure:
-            from panelflow.output.figures import field_figure
             from panelflow.flow.streamlines import streamlines
+            from panelflow.output.figures import field_figure
 
-            lines = (streamlines(analysis.fine.system, f.alpha, window, n=f.streamlines)
+            lines = (streamlines(result, alpha, window, n=f.streamlines)
                      if f.streamlines else ())
-            written.append(field_figure(flow, analysis.outlines, folder / f.figure,
-                                        streamlines=lines, overwrite=overwrite))
+            written.append(field_figure(flow, result.outlines, folder / f.figure,
+                                        streamlines=lines, overwrite=overwrite,
+                                        plane=result.plane))
     return written
 
 
@@ -786,7 +769,7 @@ def _loads(case, folder, overwrite) -> list:
         task = _task(case, f.section)
         fluid = resolve_fluid(f.fluid, f.density)
         conditions = Conditions(fluid, f.speed, unit=f.unit, chord=f.chord, span=f.span)
-        analysis = solve_task(task, [f.alpha])
-        loads = section_loads(analysis, conditions, about=f.about)
+        result = solve_task(task, _angles(case, f.section, f.alpha))
+        loads = section_loads(result, conditions, about=f.about)
         written += write_loads(loads, folder / f.file, overwrite=overwrite)
     return written

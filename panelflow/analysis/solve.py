@@ -1,0 +1,171 @@
+"""The library's one entry point: ``solve(problem) -> Result``.
+
+Every command and every case file comes through here, so every condition combines with every
+output the same way:
+
+    Problem ──> geometry (flap applied) ──> angles (given, or the one for a target lift)
+            ──> inviscid solution (free space, or near a plane: one system per angle)
+            ──> margins (compressibility, cavitation, the plane's effect) ──> Result
+
+Nothing here prints; the notes on where the model stops are plain sentences in the result.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from panelflow.analysis.inviscid import alpha_for_cl, analyse, analyse_near_plane
+from panelflow.analysis.problem import Problem
+from panelflow.analysis.result import PlaneEffect, Result
+from panelflow.errors import InputError
+from panelflow.geometry.outline import SMOOTH
+
+__all__ = ["solve", "model_notes"]
+
+# Beyond these the attached-flow answer is doubtful for ordinary sections (common practice:
+# typical sections stall between about 10 and 16 degrees from zero lift, and a suction peak far
+# below Cp = -3 usually means leading-edge separation is near).
+ALPHA_WARN_DEG = 10.0
+CP_MIN_WARN = -3.0
+# Target lift near a plane: secant iterations on the angle, and the lift tolerance.
+_SECANT_STEPS = 30
+_CL_TOLERANCE = 1e-10
+
+
+def _geometry(problem: Problem):
+    """(bodies, chord line or None, flapped section or None)."""
+    bodies = problem.bodies
+    if problem.flap is None:
+        return bodies, None, None
+    fs = problem.flap.apply(bodies[0])
+    return (*fs.outlines, *bodies[1:]), fs.chord_line, fs
+
+
+def _near_plane(problem, bodies, alpha, chord_line, error_estimate):
+    return analyse_near_plane(bodies, alpha, problem.operating.plane, n_panels=problem.panels,
+                              reference_point=problem.reference_point,
+                              error_estimate=error_estimate, chord_line=chord_line)
+
+
+def _angle_for_lift(problem: Problem, bodies, chord_line) -> float:
+    """The angle of attack that gives the target lift coefficient.
+
+    Free space: closed form (the circulation lift is a sinusoid of the angle). Near a plane the
+    images move with the angle, so a secant iteration starts from the free-space angle.
+    """
+    target = problem.operating.target_cl
+    a0 = alpha_for_cl(bodies, target, problem.panels, chord_line=chord_line)
+    if problem.operating.plane is None:
+        return a0
+
+    def lift(a):
+        inv, _ = _near_plane(problem, bodies, [a], chord_line, False)
+        return float(inv.cl[0]) - target
+
+    a1 = a0 + 0.5
+    f0, f1 = lift(a0), lift(a1)
+    for _ in range(_SECANT_STEPS):
+        if abs(f1) < _CL_TOLERANCE:
+            return a1
+        if f1 == f0:
+            break
+        a0, a1, f0 = a1, a1 - f1 * (a1 - a0) / (f1 - f0), f1
+        if not np.isfinite(a1) or abs(a1) > 45.0:
+            break
+        f1 = lift(a1)
+    plane = problem.operating.plane
+    raise InputError(f"no angle of attack up to 45 deg gives cl = {target:g} near the "
+                     f"{plane.label} {plane.distance:g} away")
+
+
+def model_notes(result: Result) -> tuple:
+    """Plain sentences on where the inviscid model is likely to stop being valid here.
+
+    Every body counts: a suction peak below Cp = -3 on any body is named with the body.
+    """
+    notes = []
+    names = [o.name for o in result.outlines]
+    smooth = [o.name for o in result.outlines if o.kind == SMOOTH]
+    if smooth:
+        notes.append(
+            f"{', '.join(smooth)} has no trailing edge: in this model a body without one carries "
+            "no circulation, so its lift is zero whatever the angle (a real rounded tail sheds "
+            "vorticity where the flow separates)")
+    for r in result:
+        flags = []
+        if abs(r.alpha_deg) > ALPHA_WARN_DEG:
+            flags.append(f"|alpha| above {ALPHA_WARN_DEG:g} deg: real sections may be near stall")
+        for k, b in enumerate(r.bodies):
+            if b.cp_min < CP_MIN_WARN:
+                where = ("leading-edge separation likely" if k == 0 else
+                         f"separation from the nose of {names[k]} likely")
+                flags.append(f"suction peak Cp {b.cp_min:.2f} on {names[k]}: {where}")
+        if flags:
+            notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
+    if result.compressibility is not None:
+        notes.extend(result.compressibility.warnings)
+    if result.cavitation is not None and np.any(result.cavitation.cavitating):
+        a = result.alpha_deg[np.asarray(result.cavitation.cavitating)]
+        notes.append(f"cavitation expected at alpha {', '.join(f'{v:g}' for v in a)} deg at "
+                     f"{result.cavitation.speed:g} m/s and {result.cavitation.depth:g} m depth")
+    return tuple(notes)
+
+
+def solve(problem: Problem) -> Result:
+    """Solve a problem: the inviscid flow and every margin its operating point asks for.
+
+    Parameters
+    ----------
+    problem : Problem
+        The bodies and the operating point (:mod:`panelflow.analysis.problem`).
+
+    Returns
+    -------
+    Result
+        ``inviscid`` always; ``compressibility`` with a Mach number, ``cavitation`` with a depth,
+        ``plane`` with a wall or free surface, ``flap`` with a flap.
+
+    Raises
+    ------
+    PanelflowError
+        Unusable geometry (:class:`~panelflow.errors.GeometryError`), a singular system
+        (:class:`~panelflow.errors.SolveError`), an unreachable target lift or a body reaching
+        the plane.
+    """
+    if not isinstance(problem, Problem):
+        raise InputError(f"solve takes a Problem, got {type(problem).__name__}")
+    op = problem.operating
+    bodies, chord_line, flapped = _geometry(problem)
+    alpha = (np.array([_angle_for_lift(problem, bodies, chord_line)]) if op.target_cl is not None
+             else np.asarray(op.alpha_deg, float))
+    plane = None
+    if op.plane is None:
+        inviscid = analyse(bodies, alpha, n_panels=problem.panels,
+                           reference_point=problem.reference_point,
+                           error_estimate=problem.error_estimate, chord_line=chord_line)
+    else:
+        from panelflow.flow.images import CAUTIONS
+
+        inviscid, gaps = _near_plane(problem, bodies, alpha, chord_line, problem.error_estimate)
+        free = analyse(bodies, alpha, n_panels=problem.panels,
+                       reference_point=problem.reference_point, error_estimate=False,
+                       chord_line=chord_line)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            ratio = np.where(np.abs(free.cl) > 1e-3, inviscid.cl / free.cl, np.nan)
+        line = inviscid.fine.chord_line
+        pitch = np.asarray(line.leading_edge, float) + 0.25 * (
+            np.asarray(line.trailing_edge, float) - np.asarray(line.leading_edge, float))
+        plane = PlaneEffect(op.plane, pitch, gaps, np.asarray(free.cl),
+                            np.asarray(free.cm), ratio, CAUTIONS[op.plane.kind])
+    compressibility = cavitation = None
+    if op.mach is not None:
+        from panelflow.conditions.compressibility import correct
+
+        compressibility = correct(inviscid, op.mach, op.mach_rule)
+    if op.depth is not None:
+        from panelflow.conditions.cavitation import assess_in
+
+        cavitation = assess_in(inviscid, op.depth, op.fluid, speed=op.speed)
+    result = Result(problem, inviscid, compressibility, cavitation, plane, flapped)
+    return Result(problem, inviscid, compressibility, cavitation, plane, flapped,
+                  model_notes(result))
