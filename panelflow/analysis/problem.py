@@ -352,7 +352,7 @@ def _refusals(op: OperatingPoint, output: str) -> list:
                        "not use a running depth")
     if output == "loads" and (op.fluid is None or op.speed is None):
         out.append("loads need the fluid (or its density) and the speed")
-    if output in ("solve", "compare", "figures") and op.depth is None and (
+    if output in ("solve", "compare", "field", "figures") and op.depth is None and (
             op.fluid is not None or op.speed is not None):
         out.append("a fluid and a speed serve the cavitation check here: give the running depth "
                    "too (loads take them without)")

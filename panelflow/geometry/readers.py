@@ -54,7 +54,7 @@ import numpy as np
 from panelflow.errors import GeometryError, InputError
 from panelflow.geometry.outline import Outline
 from panelflow.geometry.sections import SPEC_HELP, parse_spec
-from panelflow.output.writers import atomic_write_text
+from panelflow.files import atomic_write_text
 
 __all__ = [
     "READERS",

@@ -78,7 +78,7 @@ from pathlib import Path
 
 import numpy as np
 
-from panelflow.analysis.result import as_result
+from panelflow.analysis.result import as_result, margin_record
 from panelflow.errors import InputError
 from panelflow.conditions.fluids import Conditions
 from panelflow.geometry.outline import BLUNT, SHARP
@@ -344,6 +344,9 @@ class Loads:
         Facts of this case worth printing (lift estimates, cavitation number).
     transfer : NodeTransfer or None
         Loads moved onto the user's structural nodes, when given.
+    analysis : dict
+        The solved problem as plain data (:meth:`Problem.record` and the margins' settings of
+        :func:`~panelflow.analysis.result.margin_record`): what the pressures were computed for.
     """
 
     conditions: Conditions
@@ -367,6 +370,7 @@ class Loads:
     cautions: tuple
     notes: tuple
     transfer: NodeTransfer | None = None
+    analysis: dict = field(default_factory=dict, repr=False)
 
     def __repr__(self) -> str:
         return (f"Loads(alpha={self.alpha_deg:g} deg, lift={self.lift:.6g} {self.force_unit}, "
@@ -649,7 +653,8 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
     loads = Loads(conditions, alpha, scale, chord, q, ref, about_m, bodies, lift, drag,
                   float(moments[0]), moments[1:], cl_c * fscale, cl_p, float(cp.cd[i]),
                   float(cp.cm[i]), cl_c, Equilibrium(checks), LOAD_CAUTIONS + cav_caution,
-                  tuple(notes) + cav_note)
+                  tuple(notes) + cav_note,
+                  analysis={**result.problem.record(), **margin_record(result)})
     if nodes is not None:
         tol = None if node_tolerance is None else node_tolerance * scale
         loads = with_transfer(loads, transfer_to_nodes(loads, nodes, tol, moment_tolerance))

@@ -38,7 +38,7 @@ import numpy as np
 from panelflow.version import __version__
 from panelflow.errors import OutputError
 from panelflow.loads.section import Loads
-from panelflow.output.writers import atomic_write_text, check_outputs
+from panelflow.output.writers import atomic_write_text, check_outputs, json_ready
 
 LOAD_WRITERS: dict = {}
 FORMAT = "panelflow section loads"
@@ -175,6 +175,7 @@ def loads_record(loads: Loads) -> dict:
                         "unit": loads.force_unit if c.unit == "force" else loads.moment_unit,
                         "relative": c.relative} for c in eq.checks]},
         "notes": list(loads.notes),
+        "analysis": json_ready(loads.analysis),
         "transfer": transfer_record(loads),
         "bodies": bodies,
     }

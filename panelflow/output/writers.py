@@ -92,19 +92,19 @@ def analysis_record(result) -> dict:
         "bodies": [o.name for o in result.outlines],
         "caution": CAUTION,
         "results": results,
-        "conditions": _plain(result.problem.record()),
+        "conditions": json_ready(result.problem.record()),
         "notes": list(result.notes),
     }
-    record.update(_plain(margin_record(result)))
+    record.update(json_ready(margin_record(result)))
     return record
 
 
-def _plain(value):
-    """Nested data with NaN as null (JSON has no NaN)."""
+def json_ready(value):
+    """Nested plain data with NaN and infinities as null (JSON has neither)."""
     if isinstance(value, dict):
-        return {k: _plain(v) for k, v in value.items()}
+        return {k: json_ready(v) for k, v in value.items()}
     if isinstance(value, (list, tuple)):
-        return [_plain(v) for v in value]
+        return [json_ready(v) for v in value]
     if isinstance(value, float):
         return _clean(value)
     return value

@@ -89,7 +89,7 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from panelflow.analysis.problem import Flap, OperatingPoint
+from panelflow.analysis.problem import Flap, OperatingPoint, check_output
 from panelflow.errors import InputError, PanelflowError
 from panelflow.geometry.arguments import parse_angles
 from panelflow.study.runner import BodySource, SectionTask, file_sha256
@@ -806,7 +806,7 @@ def _section_of(ck: _Checker, t: dict, path, labels) -> str:
 
 
 def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, chord=None,
-             target=False) -> Outputs:
+             operating=None) -> Outputs:
     from panelflow.output.field_files import FIELD_WRITERS
     from panelflow.output.load_files import LOAD_WRITERS
     from panelflow.output.figures import FIGURE_FORMATS
@@ -846,6 +846,8 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, 
             out.append((t, p))
         return out
 
+    target = operating is not None and operating.target_cl is not None
+
     def alpha(t, p):
         if "alpha" not in t:
             if target:  # the sections' own target-lift angles
@@ -866,6 +868,11 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, 
         title(t, p)) for t, p in entries("cp_figure"))
     fields_ = []
     for t, p in entries("field"):
+        if operating is not None:
+            try:
+                check_output(operating, "field")
+            except InputError as exc:
+                raise ck.error(p, str(exc).split(": ", 1)[-1]) from None
         window = None
         if "window" in t:
             window = ck.numbers(t["window"], p + ("window",), 4, "[X0, X1, Y0, Y1]")
@@ -959,7 +966,7 @@ def parse_case(text: str, path) -> Case:
     sections = _sections(ck, doc, base, settings)
     tasks = tuple(t for t, _ in sections)
     outputs = _outputs(ck, doc, [t.label for t in tasks], fluid, density, speed, unit, chord,
-                       settings["operating"].target_cl is not None)
+                       settings["operating"])
     import hashlib
 
     return Case(p, hashlib.sha256(text.encode("utf-8")).hexdigest(), title, output, tasks,
