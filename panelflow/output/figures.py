@@ -236,7 +236,7 @@ def _wrap_card(text: str, chars: int = 36) -> list:
 
 
 def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
-               reference=None):
+               reference=None, levels=()):
     """Lay out a Cp figure: Cp axes (negative up), true-scale sections beneath, card, note.
 
     Parameters
@@ -252,6 +252,9 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
     legend_title : str, optional
     reference : (x/c, y/c), optional
         Moment reference point, marked on the section.
+    levels : sequence of (Cp, label)
+        Reference levels drawn across the Cp axes (the critical Cp*, minus the cavitation
+        number), each labelled at its right end.
     """
     from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
@@ -298,9 +301,15 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
                    solid_joinstyle="round", zorder=3)
         ax_cp.plot(t.s_lower, t.cp_lower, color=t.colour, linewidth=LINE["lower"],
                    linestyle=_LOWER_DASH, zorder=3)
-    cps = np.concatenate([t.cp_upper for t in traces] + [t.cp_lower for t in traces])
+    cps = np.concatenate([t.cp_upper for t in traces] + [t.cp_lower for t in traces]
+                         + [np.array([v for v, _ in levels], float)])
     lo = float(np.nanmin(cps))
     hi = max(1.0, float(np.nanmax(cps)))
+    for value, label in levels:
+        ax_cp.axhline(value, color=MUTED, linewidth=0.9, linestyle=(0, (5, 3)), zorder=2)
+        ax_cp.annotate(label, xy=(1.0, value), xycoords=("axes fraction", "data"),
+                       xytext=(-3, 3), textcoords="offset points", ha="right", va="bottom",
+                       fontsize=FONT["legend"], color=MUTED)
     c_pad = 0.06 * (hi - lo)
     ax_cp.set_ylim(hi + c_pad, lo - c_pad)  # negative Cp upward
     ax_cp.set_xlim(x0, x1)
@@ -412,6 +421,36 @@ def _case_rows(analysis, indices) -> list:
     return rows
 
 
+def _margins(result, indices):
+    """Reference levels and card rows of the margins a result carries, at the drawn angles."""
+    levels, rows = [], []
+    c = getattr(result, "compressibility", None)
+    if c is not None:
+        if np.isfinite(c.cp_star):
+            levels.append((float(c.cp_star), f"Cp* at Mach {c.mach:g}"))
+        rows += [("gap",), ("row", "Mach number", f"{c.mach:g} ({c.rule})")]
+        for i in indices:
+            rows.append(("row", f"Cl at Mach {c.mach:g}",
+                         _pm(float(c.cl[i]), float(c.cl_error_estimate[i]))))
+            rows.append(("row", "critical Mach", _fixed(float(c.critical_mach[i]), 3)))
+    v = getattr(result, "cavitation", None)
+    if v is not None:
+        rows += [("gap",), ("row", "depth", f"{v.depth:g} m")]
+        if np.isfinite(v.sigma):
+            levels.append((-float(v.sigma), f"minus the cavitation number ({v.sigma:.3g} at "
+                                            f"{v.speed:g} m/s)"))
+        for i in indices:
+            rows.append(("row", "inception speed",
+                         f"{float(v.section_inception_speed[i]):.3g} m/s"))
+    p = getattr(result, "plane", None)
+    if p is not None:
+        rows += [("gap",), ("row", p.boundary.label,
+                            f"{p.boundary.distance:g} from the pitch point")]
+        for i in indices:
+            rows.append(("row", "Cl in free space", _fixed(float(p.cl_free[i]), 4)))
+    return levels, rows
+
+
 def _build_surface_cp_figure(analysis, alpha_deg=None, title=None):
     """The surface Cp figure of one analysis, unsaved (see :func:`surface_cp_figure`).
 
@@ -448,13 +487,15 @@ def _build_surface_cp_figure(analysis, alpha_deg=None, title=None):
         title = f"Surface pressure, angle of attack {angles}"
     ref = analysis.reference_point
     s_ref, n_ref = _chord_frame(line, ref[0], ref[1])
+    levels, margin_rows = _margins(analysis, indices)
+    card += margin_rows
     # outlines in the body colours when colour tells the bodies apart
     edges = ([PALETTE[k % len(PALETTE)] for k in range(len(names))]
              if not several and len(names) > 1 else [INK] * len(names))
     return _cp_figure(traces, _shapes(analysis, edges, SECTION_FILL), card, title,
                       legend_labels=legend,
                       legend_title="angle of attack" if several else "bodies" if legend else None,
-                      reference=(float(s_ref), float(n_ref)))
+                      reference=(float(s_ref), float(n_ref)), levels=levels)
 
 
 def surface_cp_figure(analysis, path, alpha_deg=None, *, overwrite: bool = False,
