@@ -19,3 +19,20 @@ class SolveError(PanelflowError):
 
 class OutputError(PanelflowError):
     """A result file cannot be written (exists, or the folder is not writable)."""
+
+
+class IncompleteRunError(PanelflowError):
+    """A study stopped with sections unfinished (workers lost, or none finishing in time).
+
+    Attributes
+    ----------
+    finished : list
+        Per task, its result, or None where it did not finish (task order).
+    unfinished : list of str
+        Labels of the sections that did not finish.
+    """
+
+    def __init__(self, message: str, finished=(), unfinished=()):
+        super().__init__(message)
+        self.finished = list(finished)
+        self.unfinished = list(unfinished)

@@ -212,7 +212,8 @@ ERRORS = [
      "give the geometry with"),
     (MINIMAL.replace("naca0012", "naca00{12..18:0}"), 2, "section[1].spec",
      "STEP must not be zero"),
-    (MINIMAL + "panels = 4\n", 6, "conditions.panels", "at least 8"),
+    (MINIMAL + "panels = 4\n", 6, "conditions.panels", "at least 16"),
+    (MINIMAL + "panels = 100000\n", 6, "conditions.panels", "at most 4000"),
     (MINIMAL + "panels = 100.5\n", 6, "conditions.panels", "whole number"),
     (MINIMAL + "error_estimate = \"no\"\n", 6, "conditions.error_estimate", "true or false"),
     (MINIMAL + "fluid = \"lava\"\n", 6, "conditions.fluid", "unknown fluid 'lava'"),
@@ -280,7 +281,7 @@ def test_invalid_toml_gives_tomllib_line(tmp_path):
 
 
 @pytest.mark.parametrize("data, fragment", [
-    (None, "no such case file"),
+    (None, "no such file"),
     (b"\xff\xfe[", "not UTF-8"),
 ])
 def test_unreadable_case_files(tmp_path, data, fragment):

@@ -362,7 +362,7 @@ def test_read_nodes_errors(tmp_path, text, words):
 
 
 def test_read_nodes_missing_file(tmp_path):
-    with pytest.raises(InputError, match="cannot read"):
+    with pytest.raises(InputError, match="no such file"):
         read_nodes(tmp_path / "none.csv")
 
 

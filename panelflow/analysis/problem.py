@@ -30,7 +30,8 @@ from panelflow.flow.images import MAX_DISTANCE_CHORDS, Boundary
 from panelflow.geometry.outline import Outline
 
 DEFAULT_PANELS = 200
-MIN_PANELS = 8
+# the error estimate solves again at half the panels, which needs 8 at least
+MIN_PANELS = 16
 # A dense LU of N unknowns needs 8 N^2 bytes and ~N^3 operations: 8000 unknowns are 0.5 GB and
 # some seconds, beyond any accuracy the inputs support (second order: 2000 panels per body put
 # the discretisation error of cl near 1e-6).

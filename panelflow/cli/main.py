@@ -11,10 +11,13 @@ from __future__ import annotations
 import argparse
 import json
 import sys
+import warnings
+
+import numpy as np
 
 from panelflow.cli.options import (Parser, add_condition_options, add_geometry_options,
-                                   checked_operating, join_numeric_values, parse_numbers,
-                                   problem_of)
+                                   checked_operating, input_files, join_numeric_values,
+                                   parse_numbers, problem_of)
 from panelflow.errors import InputError, PanelflowError
 from panelflow.geometry.arguments import load_bodies, parse_point
 from panelflow.version import __version__
@@ -41,12 +44,20 @@ def _check_figure(ns) -> None:
         check_figure_path(ns.plot, ns.force)
 
 
+def _guard(ns, outputs) -> None:
+    """Refuse any output that is one of the command's own input files (``--force`` or not)."""
+    from panelflow.files import refuse_inputs
+
+    refuse_inputs([o for o in outputs if o], input_files(ns))
+
+
 def _cmd_solve(ns) -> int:
     from panelflow.output.report import solve_table
     from panelflow.output.writers import analysis_json, check_outputs, write_result
 
     operating = checked_operating(ns, "solve")
     problem = problem_of(ns, load_bodies(ns.outlines), operating)
+    _guard(ns, [*(ns.output or []), ns.plot])
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
     _check_figure(ns)
     result = _solve(problem)
@@ -79,6 +90,7 @@ def _cmd_field(ns) -> int:
         raise InputError("give a field file with -o FILE and/or a figure with --plot FIGURE")
     if ns.points and ns.plot:
         raise InputError("--plot draws a grid field: use --window/--resolution, not --points")
+    _guard(ns, [*outputs, ns.plot])
     check_field_outputs(outputs, ns.force)
     _check_figure(ns)
     resolution = parse_numbers(ns.resolution, 2, "--resolution", int)
@@ -92,6 +104,9 @@ def _cmd_field(ns) -> int:
     else:
         shape = None
     flow = flow_field(result, points, [alpha], shape)
+    if flow.inside.all():
+        raise InputError(f"all {len(flow.points)} field points lie inside a body or beyond the "
+                         "plane: there is no flow to write")
     written = [write_field(flow, path, outlines=result.outlines, overwrite=ns.force)
                for path in outputs]
     if ns.plot:
@@ -113,6 +128,7 @@ def _cmd_compare(ns) -> int:
     operating = checked_operating(ns, "compare")
     cases = [load_bodies([arg]) for arg in expand_arguments(ns.outlines)]
     problems = [problem_of(ns, bodies, operating) for bodies in cases]
+    _guard(ns, [*(ns.output or []), ns.plot])
     _check_figure(ns)
     if ns.output:
         from panelflow.output.tables import check_table_outputs
@@ -147,12 +163,15 @@ def _cmd_compare(ns) -> int:
 
 def _cmd_run(ns) -> int:
     from panelflow.study.cases import load_case
-    from panelflow.study.runner import open_executor, run_case
+    from panelflow.study.runner import DEFAULT_TIMEOUT, open_executor, run_case
 
     case = load_case(ns.case)
+    if ns.timeout is not None and not ns.timeout > 0:
+        raise InputError(f"--timeout {ns.timeout:g}: give a positive number of seconds")
     with open_executor(workers=ns.workers, scheduler=ns.scheduler) as executor:
         report = run_case(case, executor, output=ns.output, overwrite=ns.force,
-                          progress=True if ns.progress else None)
+                          progress=True if ns.progress else None,
+                          timeout=ns.timeout or DEFAULT_TIMEOUT)
     sys.stdout.write(report.summary())
     return 0
 
@@ -174,6 +193,9 @@ def _cmd_loads(ns) -> int:
                   Conditions(fluid, speed, static_pressure=ns.static_pressure, **scale))
     about = [parse_point(t, "--about") for t in ns.about or []]
     nodes = read_nodes(ns.nodes) if ns.nodes else None
+    from panelflow.output.load_files import output_paths
+
+    _guard(ns, [q for path in ns.output for q in output_paths(path)])
     check_load_outputs(ns.output, overwrite=ns.force)
     result = _solve(problem)
     loads = section_loads(result, conditions, about=about, nodes=nodes,
@@ -209,7 +231,8 @@ def _cmd_section(ns) -> int:
     from panelflow.geometry.readers import write_outline_table
     from panelflow.geometry.sections import parse_spec
 
-    outline = parse_spec(ns.spec, n_points=ns.points) if ns.points else parse_spec(ns.spec)
+    outline = (parse_spec(ns.spec, n_points=ns.points) if ns.points is not None
+               else parse_spec(ns.spec))
     if outline is None:
         raise InputError(f"{ns.spec}: not a section spec (try naca2412, naca23012, circle, "
                          "ellipse:A,B, joukowski:XC,YC, karman-trefftz:XC,YC,TAU)")
@@ -290,6 +313,9 @@ def build_parser() -> argparse.ArgumentParser:
     r.add_argument("--force", action="store_true", help="replace existing output files")
     r.add_argument("--progress", action="store_true",
                    help="show the progress bar even when stderr is not a terminal")
+    r.add_argument("--timeout", type=float, metavar="SECONDS",
+                   help="with --workers or --scheduler: give up when no section finishes for "
+                   "this long (default 600); finished sections are kept")
     r.set_defaults(func=_cmd_run)
 
     ld = sub.add_parser("loads", parents=[common, _solving_parent(one)],
@@ -335,7 +361,11 @@ def main(argv=None) -> int:
     argv = sys.argv[1:] if argv is None else list(argv)
     ns = parser.parse_args(join_numeric_values(argv))
     try:
-        return ns.func(ns)
+        # undefined numbers (a centre of pressure without lift, an estimate that cannot be
+        # made) are NaN and print as such; numpy's floating-point warnings about them are noise
+        with np.errstate(all="ignore"), warnings.catch_warnings():
+            warnings.simplefilter("ignore", RuntimeWarning)
+            return ns.func(ns)
     except PanelflowError as exc:
         if ns.debug:
             raise

@@ -175,3 +175,20 @@ class Parser(argparse.ArgumentParser):
 
     def error(self, message):
         self.exit(2, f"{self.prog}: error: {message}\n")
+
+
+def input_files(ns) -> list:
+    """The files a command reads: outline files (without their ``@`` transforms), point and node
+    tables."""
+    import os
+
+    files = []
+    for arg in getattr(ns, "outlines", None) or []:
+        source, _ = arguments.split_transforms(arg)
+        if os.path.isfile(source):
+            files.append(source)
+    for key in ("points", "nodes", "case"):
+        value = getattr(ns, key, None)
+        if isinstance(value, str) and os.path.isfile(value):
+            files.append(value)
+    return files

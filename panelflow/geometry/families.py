@@ -38,6 +38,7 @@ from __future__ import annotations
 import glob
 import itertools
 import os
+import threading
 import re
 from decimal import Decimal
 from pathlib import Path
@@ -50,6 +51,7 @@ __all__ = ["MAX_MEMBERS", "is_family", "expand_family", "is_pattern", "expand_fi
 # A family larger than this is almost certainly a typing slip (a wrong step); it would also make
 # a study of hours. Lists longer than this are refused with the count in the message.
 MAX_MEMBERS = 10_000
+GLOB_SECONDS = 20.0
 
 _BRACES = re.compile(r"\{([^{}]*)\}")
 _NUMBER = r"[-+]?(?:\d+(?:\.\d*)?|\.\d+)"
@@ -166,6 +168,44 @@ def _split_pattern(text: str):
     return (text, "") if at < 0 else (text[:at], text[at:])
 
 
+def _fixed_prefix(pattern: str) -> str:
+    """The folder part of a pattern before its first wildcard."""
+    head = re.split(r"[*?\[]", pattern, maxsplit=1)[0]
+    return os.path.dirname(head) or "."
+
+
+def _bounded_glob(pattern: str, shown: str) -> list:
+    """``glob`` that refuses a search of the whole disk and gives up after a while.
+
+    A recursive pattern from the file-system root would walk every folder of the machine; any
+    search that takes longer than ``GLOB_SECONDS`` (a slow network share) is refused with a
+    message instead of hanging.
+    """
+    if "**" in pattern:
+        root = os.path.abspath(_fixed_prefix(pattern))
+        if os.path.dirname(root) == root:
+            raise InputError(f"{shown}: a '**' pattern from the top of the file system would "
+                             "search the whole disk; start it in a folder")
+    found, done = [], threading.Event()
+
+    def search():
+        try:
+            for path in glob.iglob(pattern, recursive=True):
+                found.append(path)
+                if len(found) > MAX_MEMBERS:
+                    break
+        finally:
+            done.set()
+
+    threading.Thread(target=search, daemon=True).start()
+    if not done.wait(GLOB_SECONDS):
+        raise InputError(f"{shown}: the pattern was still searching after {GLOB_SECONDS:g} s; "
+                         "narrow it to the folder that holds the files")
+    if len(found) > MAX_MEMBERS:
+        raise InputError(f"{shown}: matches more than {MAX_MEMBERS} paths")
+    return found
+
+
 def expand_files(pattern, base=None) -> list:
     """Existing files matching a wildcard pattern, sorted; a plain path gives itself.
 
@@ -193,8 +233,7 @@ def expand_files(pattern, base=None) -> list:
     if not is_pattern(full):
         return [full]
     pat, suffix = _split_pattern(full)
-    matches = sorted(Path(p).as_posix() for p in glob.glob(pat, recursive=True)
-                     if os.path.isfile(p))
+    matches = sorted(Path(p).as_posix() for p in _bounded_glob(pat, text) if os.path.isfile(p))
     if not matches:
         raise InputError(f"{text}: no file matches this pattern")
     return [m + suffix for m in matches]

@@ -54,7 +54,7 @@ import numpy as np
 from panelflow.errors import GeometryError, InputError
 from panelflow.geometry.outline import Outline
 from panelflow.geometry.sections import SPEC_HELP, parse_spec
-from panelflow.files import atomic_write_text
+from panelflow.files import atomic_write_text, check_input, read_input
 
 __all__ = [
     "READERS",
@@ -70,6 +70,9 @@ READERS: dict[str, Reader] = {}
 
 _SPLIT = re.compile(r"[,\s]+")
 _COLUMN_LABEL = re.compile(r"[(\[]?[xy]([^a-z].*)?", re.IGNORECASE)
+# Largest coordinate read (any unit): a 10 m chord in micrometres is 1e7; far larger numbers
+# are a corrupt or wrong file, and squares of numbers near 1e154 overflow.
+MAX_COORDINATE = 1e9
 _BINARY_PROBE = 8192  # bytes looked at for NUL bytes; text tables never hold one
 
 
@@ -99,24 +102,8 @@ def _reader_for(path: Path) -> Reader:
 
 
 # ---------------------------------------------------------------------------------- file access
-def _check_readable(path: Path) -> None:
-    if not path.exists():
-        raise InputError(f"{path}: no such file")
-    if path.is_dir():
-        raise InputError(f"{path}: is a folder, not a file")
-    try:
-        with path.open("rb") as fh:
-            fh.read(1)
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read ({exc.strerror or exc})") from None
-
-
 def _read_bytes(path: Path) -> bytes:
-    _check_readable(path)
-    try:
-        return path.read_bytes()
-    except OSError as exc:
-        raise InputError(f"{path}: cannot read ({exc.strerror or exc})") from None
+    return read_input(path, "coordinate table or mesh file")
 
 
 def _read_text(path: Path) -> str:
@@ -288,6 +275,12 @@ def _names(bodies: list[_Body], stem: str) -> list[str]:
 
 def _outline(points: np.ndarray, name: str, path: Path, where: str,
              starts_at_te: bool = True) -> Outline:
+    big = np.abs(points) > MAX_COORDINATE
+    if np.any(big):
+        k = int(np.argmax(big.any(axis=1)))
+        raise InputError(f"{path}: {where}point {k + 1} ({points[k, 0]:.6g}, {points[k, 1]:.6g}) "
+                         f"is beyond +/-{MAX_COORDINATE:.0e}: not a section outline in any "
+                         "length unit; check the file")
     try:
         return Outline.from_points(points, name=name, source=str(path),
                                    starts_at_trailing_edge=starts_at_te)
@@ -427,7 +420,7 @@ def read_outline_mesh(path) -> list[Outline]:
         A loop is not a valid outline.
     """
     p = Path(path)
-    _check_readable(p)
+    check_input(p, "mesh file")  # a regular file within the size cap, before meshio opens it
     mesh = _read_mesh(p)
     blocks = [np.asarray(c.data, dtype=np.int64) for c in mesh.cells if c.type == "line"]
     if not blocks:
@@ -435,6 +428,12 @@ def read_outline_mesh(path) -> list[Outline]:
         raise InputError(f"{p}: the mesh has no line cells (cell types: {kinds})")
     edges = np.vstack(blocks)
     pts = np.asarray(mesh.points, dtype=float)
+    if pts.ndim != 2 or pts.shape[1] < 2:
+        raise InputError(f"{p}: the mesh points have no x and y coordinates")
+    if edges.ndim != 2 or edges.shape[1] != 2 or edges.min() < 0 or edges.max() >= len(pts):
+        bad = int(edges.max()) if len(pts) and edges.max() >= len(pts) else int(edges.min())
+        raise InputError(f"{p}: a line cell refers to point {bad}, but the mesh has "
+                         f"{len(pts)} points (0 to {len(pts) - 1})")
     if not np.all(np.isfinite(pts[np.unique(edges)])):
         raise InputError(f"{p}: point coordinates must be finite numbers")
     xy = pts[:, :2]

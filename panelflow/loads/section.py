@@ -80,6 +80,7 @@ import numpy as np
 
 from panelflow.analysis.result import as_result, margin_record
 from panelflow.errors import InputError
+from panelflow.files import read_input
 from panelflow.conditions.fluids import Conditions
 from panelflow.geometry.outline import BLUNT, SHARP
 
@@ -709,9 +710,9 @@ def read_nodes(path) -> StructuralNodes:
     """
     p = Path(path)
     try:
-        text = p.read_text(encoding="utf-8-sig")
-    except (OSError, UnicodeDecodeError) as exc:
-        raise InputError(f"{p}: cannot read ({getattr(exc, 'strerror', None) or exc})") from None
+        text = read_input(p, "structural node table").decode("utf-8-sig")
+    except UnicodeDecodeError as exc:
+        raise InputError(f"{p}: not UTF-8 text (byte {exc.start})") from None
     cols = (0, 1, 2)
     ids, xy, lines, header_seen = [], [], [], False
     for lineno, raw in enumerate(text.splitlines(), 1):

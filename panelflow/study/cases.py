@@ -89,8 +89,10 @@ import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 
-from panelflow.analysis.problem import Flap, OperatingPoint, check_output
+from panelflow.analysis.problem import (MAX_PANELS_PER_BODY, MIN_PANELS, Flap, OperatingPoint,
+                                       check_output)
 from panelflow.errors import InputError, PanelflowError
+from panelflow.files import read_input
 from panelflow.geometry.arguments import parse_angles
 from panelflow.study.runner import BodySource, SectionTask, file_sha256
 
@@ -98,9 +100,10 @@ __all__ = ["KeyLines", "Case", "Outputs", "PolarFigureOutput", "CpFigureOutput",
            "LoadsOutput", "load_case", "parse_case", "parse_angle_values", "KEYS"]
 
 DEFAULT_TABLE = "polars.csv"
+# A case file is a page of settings; a megabyte is far beyond any real one.
+MAX_CASE_BYTES = 2**20
 DEFAULT_RESOLUTION = (201, 121)
 DEFAULT_STREAMLINES = 17
-MIN_PANELS = 8
 
 # Valid keys of every table, for the unknown-key check and its suggestion.
 _BODY_KEYS = ("spec", "file", "name", "scale", "pitch", "move")
@@ -710,6 +713,8 @@ def _conditions(ck: _Checker, doc: dict):
         if not alpha:
             raise ck.error(path + ("alpha",), "no angle given")
     panels = ck.integer(c["panels"], path + ("panels",), MIN_PANELS) if "panels" in c else 200
+    if panels > MAX_PANELS_PER_BODY:
+        raise ck.error(path + ("panels",), f"must be at most {MAX_PANELS_PER_BODY}, got {panels}")
     keep = ck.boolean(c["keep_points"], path + ("keep_points",)) if "keep_points" in c else False
     ref = (ck.numbers(c["reference_point"], path + ("reference_point",), 2, "[X, Y]")
            if "reference_point" in c else None)
@@ -949,10 +954,17 @@ def parse_case(text: str, path) -> Case:
     """
     p = Path(path)
     name = p.name
+    if len(text) > MAX_CASE_BYTES:
+        raise InputError(f"{name}: {len(text)} characters, more than a case file may have "
+                         f"({MAX_CASE_BYTES})")
+    text = text.removeprefix("\ufeff")
     try:
         doc = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"{name}: not valid TOML: {exc}") from None
+    except (RecursionError, MemoryError):
+        raise InputError(f"{name}: arrays or tables nested too deeply to be a case file") \
+            from None
     ck = _Checker(name, KeyLines(text))
     ck.keys(doc, "top", ())
     base = p.parent if str(p.parent) else Path(".")
@@ -982,14 +994,9 @@ def load_case(path) -> Case:
         Missing or unreadable file, not UTF-8, or any problem :func:`parse_case` finds.
     """
     p = Path(path)
+    data = read_input(p, "case file", limit=MAX_CASE_BYTES)
     try:
-        data = p.read_bytes()
-    except FileNotFoundError:
-        raise InputError(f"{p}: no such case file") from None
-    except OSError as exc:
-        raise InputError(f"{p}: cannot read ({exc.strerror or exc})") from None
-    try:
-        text = data.decode("utf-8")
+        text = data.decode("utf-8-sig")  # a byte-order mark some editors write is no content
     except UnicodeDecodeError as exc:
         raise InputError(f"{p}: not UTF-8 text (byte {exc.start}); TOML files are UTF-8") \
             from None

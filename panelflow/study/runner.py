@@ -31,6 +31,7 @@ import json
 import os
 import platform
 import sys
+import threading
 import time
 from dataclasses import dataclass, field, fields
 from pathlib import Path
@@ -41,7 +42,8 @@ from dataclasses import replace
 
 from panelflow.analysis.problem import Flap, OperatingPoint, Problem
 from panelflow.analysis.solve import solve
-from panelflow.errors import InputError, OutputError, PanelflowError
+from panelflow.errors import IncompleteRunError, InputError, OutputError, PanelflowError
+from panelflow.files import refuse_inputs
 from panelflow.geometry.arguments import transformed, unique_names
 from panelflow.version import __version__
 
@@ -51,6 +53,10 @@ __all__ = ["BodySource", "Flap", "SectionTask", "section_tasks", "split_settings
            "manifest_record", "write_manifest", "RunReport", "run_case", "MANIFEST_NAME"]
 
 MANIFEST_NAME = "manifest.json"
+# Seconds without any section finishing before a distributed or multi-process study gives up.
+DEFAULT_TIMEOUT = 600.0
+# Seconds to reach a scheduler and to find a worker there.
+CONNECT_TIMEOUT = 10.0
 MANIFEST_FORMAT = "panelflow run manifest"
 _PROGRESS_DELAY = 1.0  # seconds before a bar appears: a study shorter than this stays silent
 
@@ -346,7 +352,13 @@ def _bar(total: int, progress):
                 dynamic_ncols=True)
 
 
-def run_study(tasks, executor: cf.Executor | None = None, progress=None) -> list:
+def _names(labels, limit: int = 6) -> str:
+    shown = ", ".join(repr(lab) for lab in labels[:limit])
+    return shown + (f" and {len(labels) - limit} more" if len(labels) > limit else "")
+
+
+def run_study(tasks, executor: cf.Executor | None = None, progress=None,
+              timeout: float | None = DEFAULT_TIMEOUT) -> list:
     """Run every task and return the polars in task order.
 
     Parameters
@@ -359,6 +371,9 @@ def run_study(tasks, executor: cf.Executor | None = None, progress=None) -> list
     progress : bool or None
         A progress bar on stderr: None shows it when stderr is a terminal and the study takes
         longer than a moment; True always; False never.
+    timeout : float or None
+        With an executor: seconds without any section finishing after which the run gives up
+        (workers lost or stuck); None waits for ever.
 
     Returns
     -------
@@ -370,6 +385,10 @@ def run_study(tasks, executor: cf.Executor | None = None, progress=None) -> list
     PanelflowError
         The first failing task's error (by task order among those that failed when collected);
         the tasks not yet started are cancelled.
+    IncompleteRunError
+        Workers were lost (a killed process, a lost Dask worker that the scheduler could not
+        replace) or nothing finished within ``timeout``: names the unfinished sections and
+        carries the finished results.
     """
     tasks = list(tasks)
     for t in tasks:
@@ -389,20 +408,48 @@ def run_study(tasks, executor: cf.Executor | None = None, progress=None) -> list
                 if bar is not None:
                     bar.update(1)
             return results
-        futures = {executor.submit(run_task, t): i for i, t in enumerate(tasks)}
-        try:
-            for fut in cf.as_completed(futures):
-                results[futures[fut]] = fut.result()
-                if bar is not None:
-                    bar.update(1)
-        except BaseException:
-            for fut in futures:
-                fut.cancel()
-            raise
-        return results
+        return _collect(executor, tasks, results, bar, timeout)
     finally:
         if bar is not None:
             bar.close()
+
+
+def _collect(executor, tasks, results, bar, timeout, work=None):
+    """Submit every task and gather the results, giving up on lost or silent workers.
+
+    ``work`` is the function each worker runs on a task (default :func:`run_task`).
+    """
+    futures = {executor.submit(work or run_task, t): i for i, t in enumerate(tasks)}
+    pending, lost = set(futures), {}
+    try:
+        while pending:
+            done, pending = cf.wait(pending, timeout=timeout, return_when=cf.FIRST_COMPLETED)
+            if not done:
+                break
+            for fut in done:
+                i = futures[fut]
+                try:
+                    results[i] = fut.result()
+                except PanelflowError:
+                    raise
+                except Exception as exc:  # noqa: BLE001 - a lost worker shows in many forms
+                    lost[i] = f"{type(exc).__name__}: {exc}".strip().rstrip(":")
+                if bar is not None:
+                    bar.update(1)
+    except BaseException:
+        for fut in futures:
+            fut.cancel()
+        raise
+    for fut in pending:
+        fut.cancel()
+    if not pending and not lost:
+        return results
+    unfinished = sorted([futures[f] for f in pending] + list(lost))
+    names = [tasks[i].label for i in unfinished]
+    why = (f"no section finished within {timeout:g} s (workers lost or stuck)" if pending
+           else f"the worker running it was lost ({next(iter(lost.values()))})")
+    raise IncompleteRunError(f"{len(names)} of {len(tasks)} sections did not finish: "
+                             f"{_names(names)}; {why}", results, names)
 
 
 class _DaskExecutor(cf.Executor):
@@ -422,7 +469,43 @@ class _DaskExecutor(cf.Executor):
             self.client.close()
 
 
-def make_executor(workers: int | None = None, scheduler: str | None = None):
+def _connect(client_class, scheduler: str, seconds: float):
+    """A client of a running scheduler that has at least one worker, or InputError in time.
+
+    The connection is made in a helper thread and abandoned after ``seconds``: something that
+    accepts a TCP connection but never answers as a scheduler (a web server, a dashboard port)
+    would otherwise keep the handshake waiting for ever.
+    """
+    box, done = {}, threading.Event()
+
+    def connect():
+        try:
+            box["client"] = client_class(scheduler, timeout=f"{seconds}s")
+        except BaseException as exc:  # noqa: BLE001 - reported below, whatever it was
+            box["error"] = exc
+        finally:
+            done.set()
+
+    threading.Thread(target=connect, daemon=True).start()
+    if not done.wait(seconds + 2.0):
+        raise InputError(f"--scheduler {scheduler}: no scheduler answered within {seconds:g} s "
+                         "(is it a Dask scheduler's address and port, not a web page's?)")
+    if "error" in box:
+        exc = box["error"]
+        raise InputError(f"--scheduler {scheduler}: cannot connect "
+                         f"({type(exc).__name__}: {exc})") from None
+    client = box["client"]
+    try:
+        client.wait_for_workers(1, timeout=seconds)
+    except Exception:  # noqa: BLE001 - a timeout, named differently across versions
+        client.close()
+        raise InputError(f"--scheduler {scheduler}: the scheduler has no workers (none joined "
+                         f"within {seconds:g} s); start workers or use --workers N") from None
+    return client
+
+
+def make_executor(workers: int | None = None, scheduler: str | None = None,
+                  connect_timeout: float = CONNECT_TIMEOUT):
     """An executor for :func:`run_study`: local processes or a running Dask cluster.
 
     Parameters
@@ -434,6 +517,8 @@ def make_executor(workers: int | None = None, scheduler: str | None = None):
         Address of a running Dask distributed scheduler (``tcp://host:8786``); needs the
         optional packages ``panelflow[cluster]``. The returned executor closes its client when
         shut down.
+    connect_timeout : float
+        Seconds to reach the scheduler, and again to find a worker there.
 
     Returns
     -------
@@ -453,11 +538,7 @@ def make_executor(workers: int | None = None, scheduler: str | None = None):
         except ImportError:
             raise InputError("--scheduler needs Dask's distributed scheduler, which is not "
                              "installed: pip install 'panelflow[cluster]'") from None
-        try:
-            client = Client(scheduler, timeout="10s")
-        except (OSError, TimeoutError, ValueError) as exc:
-            raise InputError(f"--scheduler {scheduler}: cannot connect ({exc})") from None
-        return _DaskExecutor(client)
+        return _DaskExecutor(_connect(Client, scheduler, connect_timeout))
     if workers is None:
         return None
     if isinstance(workers, bool) or not isinstance(workers, (int, np.integer)) or workers < 1:
@@ -468,15 +549,32 @@ def make_executor(workers: int | None = None, scheduler: str | None = None):
 
 
 @contextlib.contextmanager
-def open_executor(workers: int | None = None, scheduler: str | None = None):
+def open_executor(workers: int | None = None, scheduler: str | None = None,
+                  connect_timeout: float = CONNECT_TIMEOUT):
     """:func:`make_executor` as a context manager: yields the executor (or None: in this
     process) and shuts it down afterwards, closing a Dask client."""
-    ex = make_executor(workers, scheduler)
+    ex = make_executor(workers, scheduler, connect_timeout)
     try:
         yield ex
-    finally:
+    except BaseException:
+        if ex is not None:  # do not wait for work that is lost or stuck
+            _abandon(ex)
+        raise
+    else:
         if ex is not None:
             ex.shutdown()
+
+
+def _abandon(ex) -> None:
+    """Shut an executor down without waiting: cancel what is queued, stop local processes."""
+    pool = getattr(ex, "_processes", None)  # the private process table of a process pool
+    procs = list(pool.values()) if isinstance(pool, dict) else []
+    try:
+        ex.shutdown(wait=False, cancel_futures=True)
+    finally:
+        for proc in procs:  # a process pool's workers would otherwise be joined at exit
+            if proc.is_alive():
+                proc.terminate()
 
 
 _LIMITS = []  # keeps the worker's thread limit alive
@@ -630,7 +728,7 @@ def _planned(case, folder: Path) -> dict:
     }
 
 
-def _check_planned(planned: dict, folder: Path, overwrite: bool) -> None:
+def _check_planned(planned: dict, folder: Path, overwrite: bool, inputs=()) -> None:
     from panelflow.output.field_files import check_field_outputs
     from panelflow.output.load_files import check_load_outputs, output_paths
     from panelflow.output.figures import FIGURE_FORMATS
@@ -645,6 +743,7 @@ def _check_planned(planned: dict, folder: Path, overwrite: bool) -> None:
         if os.path.abspath(p) in seen:
             raise OutputError(f"{p}: named twice as an output of the case")
         seen.add(os.path.abspath(p))
+    refuse_inputs(expanded, inputs)
     if folder.is_dir():
         check_outputs([manifest], overwrite, registry=(".json",), what="manifest")
         check_outputs(planned["table"], overwrite, registry=TABLE_WRITERS, what="table")
@@ -653,8 +752,28 @@ def _check_planned(planned: dict, folder: Path, overwrite: bool) -> None:
         check_load_outputs(planned["loads"], overwrite)
 
 
+def _write_partial(case, folder, planned, inputs, exc, overwrite, executor) -> None:
+    """Keep what finished: its rows in the planned tables and a manifest marked incomplete."""
+    from panelflow.output.tables import tidy_table, write_table
+
+    done = [p for p in exc.finished if p is not None]
+    if not done:
+        return
+    folder.mkdir(parents=True, exist_ok=True)
+    notes = [f"case {Path(case.path).name}; INCOMPLETE RUN: {len(exc.unfinished)} sections did "
+             f"not finish ({', '.join(exc.unfinished)})"]
+    written = [write_table(tidy_table(done), path, overwrite, notes) for path in planned["table"]]
+    record = manifest_record(case.settings(), inputs, written, base=Path(case.path).parent,
+                             folder=folder, executor=_executor_name(executor))
+    record["incomplete"] = True
+    record["unfinished"] = list(exc.unfinished)
+    written.append(write_manifest(folder / MANIFEST_NAME, record, overwrite))
+    exc.args = (f"{exc.args[0]}; the {len(done)} finished are in "
+                f"{', '.join(str(w) for w in written[:-1])}",)
+
+
 def run_case(case, executor: cf.Executor | None = None, output=None, overwrite: bool = False,
-             progress=None) -> RunReport:
+             progress=None, timeout: float | None = DEFAULT_TIMEOUT) -> RunReport:
     """Run a case (:func:`panelflow.study.cases.load_case`) and write every output it asks for.
 
     Order: every output name is checked first (format, not existing unless ``overwrite``), so a
@@ -673,6 +792,8 @@ def run_case(case, executor: cf.Executor | None = None, output=None, overwrite: 
         Replace existing output files.
     progress : bool or None
         See :func:`run_study`.
+    timeout : float or None
+        See :func:`run_study`.
 
     Returns
     -------
@@ -688,15 +809,19 @@ def run_case(case, executor: cf.Executor | None = None, output=None, overwrite: 
     if folder.exists() and not folder.is_dir():
         raise OutputError(f"{folder}: exists and is not a folder")
     planned = _planned(case, folder)
-    _check_planned(planned, folder, overwrite)
     inputs = case.input_files()  # hashed again when the manifest is written
-    polars = run_study(case.tasks, executor, progress)
+    _check_planned(planned, folder, overwrite, inputs)
+    try:
+        polars = run_study(case.tasks, executor, progress, timeout=timeout)
+    except IncompleteRunError as exc:
+        _write_partial(case, folder, planned, inputs, exc, overwrite, executor)
+        raise
     table = tidy_table(polars)
     try:
         folder.mkdir(parents=True, exist_ok=True)
     except OSError as exc:
         raise OutputError(f"{folder}: cannot create the folder ({exc.strerror or exc})") from None
-    _check_planned(planned, folder, overwrite)
+    _check_planned(planned, folder, overwrite, inputs)
 
     written = []
     notes = [f"case {Path(case.path).name}; one row per section and angle; moments nose-up "

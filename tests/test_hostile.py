@@ -1,0 +1,272 @@
+"""Hostile input: limits before any work, no traceback, no hang, nothing lost.
+
+Each case is one that once gave a traceback, a hang or a silently wrong action. The contract:
+exit code 1 (2 for argparse usage errors), exactly one line on stderr that says what is wrong,
+no output file written, nothing the user gave touched. Network checks talk only to 127.0.0.1.
+"""
+
+from __future__ import annotations
+
+import concurrent.futures as cf
+import os
+import socket
+import threading
+import time
+from http.server import BaseHTTPRequestHandler, HTTPServer
+from pathlib import Path
+
+import pytest
+from conftest import run
+
+from panelflow.errors import IncompleteRunError, InputError
+from panelflow.files import atomic_write_text, remove_stale_temporaries
+from panelflow.study import runner
+from panelflow.study.runner import BodySource, SectionTask
+
+GEOMETRIES = Path(__file__).resolve().parent.parent / "geometries"
+FOIL = GEOMETRIES / "tender_front_foil.dat"
+
+
+def one_error_line(err: str) -> str:
+    lines = err.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("panelflow: error: "), err
+    assert "Traceback" not in err
+    return lines[0]
+
+
+def refused(capsys, *argv, fragment):
+    code, out, err = run(capsys, *argv)
+    assert code == 1, (code, err)
+    assert fragment in one_error_line(err)
+    return out
+
+
+@pytest.fixture
+def here(tmp_path, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    return tmp_path
+
+
+# ----------------------------------------------------------------------- limits before work
+@pytest.mark.parametrize("argv, fragment", [
+    (("--panels", "100000"), "--panels 100000"),  # once asked for 74.5 GiB
+    (("--panels", "10"), "--panels 10"),  # the half-panel estimate needs 8
+    (("--alpha", "0:60:0.001", "0:60:0.001"), "at most 100000"),  # the cap is on the total
+    (("--alpha", "0", "--ref", "nan,0"), "--ref nan,0"),  # once printed cm nan, exit 0
+    (("--alpha", "95"), "at most 90"),
+])
+def test_limits(argv, fragment, here, capsys):
+    alpha = () if "--alpha" in argv else ("--alpha", "0")
+    out = refused(capsys, "solve", "naca0012", *alpha, *argv, "-o", "r.json",
+                  fragment=fragment)
+    assert out == "" and not (here / "r.json").exists()
+
+
+def test_section_points_zero_is_refused(here, capsys):
+    # once wrote 201 points without a word
+    refused(capsys, "section", "naca0012", "--points", "0", "-o", "s.dat", fragment="0")
+    assert not (here / "s.dat").exists()
+
+
+def test_no_numpy_warnings_on_stderr(capsys):
+    code, out, err = run(capsys, "solve", "naca0012", "--alpha", "0", "--panels", "16")
+    assert code == 0 and err == ""
+
+
+@pytest.mark.parametrize("kind", ["device", "fifo", "folder"])
+def test_outline_that_is_not_a_regular_file(kind, here, capsys):
+    if kind == "device":
+        path = "/dev/zero"  # once read whole into memory
+    elif kind == "fifo":
+        path = str(here / "pipe")
+        os.mkfifo(path)  # once waited for ever for a writer
+    else:
+        path = str(here)
+    fragment = "is a folder" if kind == "folder" else "not a regular file"
+    refused(capsys, "solve", path, "--alpha", "0", fragment=fragment)
+
+
+def test_outline_file_too_large(here, capsys):
+    big = here / "big.dat"
+    with open(big, "wb") as fh:  # sparse: 65 MiB of nothing on disk
+        fh.truncate(65 * 2**20)
+    refused(capsys, "check", big, fragment="more than the 64.0 MiB")
+
+
+def test_coordinates_far_beyond_any_length_unit(here, capsys):
+    # near 1e155 the squares overflow; such a file is corrupt in any unit
+    (here / "huge.dat").write_text("".join(f"{x} {y}\n" for x, y in
+                                          [(1e155, 0), (0.5e155, 1e154), (0, 0), (0.5e155, -1e154),
+                                           (1e155, 0)]))
+    refused(capsys, "check", "huge.dat", fragment="beyond +/-1e+09")
+
+
+def test_mesh_with_a_cell_index_out_of_range(here, capsys):
+    (here / "bad.vtk").write_text(
+        "# vtk DataFile Version 4.2\nbad\nASCII\nDATASET UNSTRUCTURED_GRID\nPOINTS 3 double\n"
+        "0 0 0 1 0 0 0.5 0.1 0\nCELLS 3 9\n2 0 1\n2 1 2\n2 2 7\nCELL_TYPES 3\n3\n3\n3\n")
+    out = refused(capsys, "check", "bad.vtk", fragment="bad.vtk")
+    assert out == ""
+
+
+def test_field_points_all_inside_a_body(here, capsys):
+    (here / "pts.csv").write_text("x,y\n0.3,0.0\n0.5,0.01\n")
+    refused(capsys, "field", "naca0012", "--alpha", "0", "--points", "pts.csv", "-o", "f.csv",
+            fragment="no flow to write")
+    assert not (here / "f.csv").exists()  # once written before the error
+
+
+# ----------------------------------------------------------------------------- case files
+def test_case_file_with_a_byte_order_mark(here, capsys):
+    (here / "c.toml").write_bytes(b"\xef\xbb\xbf[[section]]\nspec = \"naca0012\"\n"
+                                  b"[conditions]\nalpha = 0\npanels = 40\n")
+    code, out, err = run(capsys, "run", "c.toml", "-o", "out")
+    assert code == 0, err
+    assert (here / "out" / "polars.csv").exists()
+
+
+@pytest.mark.parametrize("text, fragment", [
+    ("x = " + "[" * 2000 + "]" * 2000 + "\n", "nested too deeply"),
+    ("# " + "x" * (2**20 + 10) + "\n", "more than the 1.0 MiB"),
+])
+def test_case_file_nesting_and_size(text, fragment, here, capsys):
+    (here / "c.toml").write_text(text)
+    refused(capsys, "run", "c.toml", fragment=fragment)
+
+
+def test_case_file_pattern_from_the_top_of_the_disk(here, capsys):
+    # once walked the whole file system
+    (here / "c.toml").write_text("[[section]]\nfile = \"/**/*.dat\"\n[conditions]\nalpha = 0\n")
+    refused(capsys, "run", "c.toml", fragment="search the whole disk")
+
+
+# ----------------------------------------------------------------------- inputs never outputs
+def test_solve_refuses_to_overwrite_its_own_outline(here, capsys):
+    src = here / "foil.dat"
+    src.write_bytes(FOIL.read_bytes())
+    refused(capsys, "solve", "foil.dat", "--alpha", "0", "-o", "foil.dat", "--force",
+            fragment="is an input of this run")
+    assert src.read_bytes() == FOIL.read_bytes()
+
+
+def test_run_refuses_an_output_that_is_its_input(here, capsys):
+    # a case whose output folder is its own folder, naming an output like its input
+    src = here / "foil.csv"
+    src.write_text("x,y\n" + "".join(
+        ",".join(line.split()) + "\n" for line in FOIL.read_text().splitlines()[1:]))
+    before = src.read_bytes()
+    (here / "c.toml").write_text("output = \".\"\n[[section]]\nfile = \"foil.csv\"\n"
+                                 "[conditions]\nalpha = 0\npanels = 40\n"
+                                 "[outputs]\ntable = \"foil.csv\"\n")
+    refused(capsys, "run", "c.toml", "--force", fragment="is an input of this run")
+    assert src.read_bytes() == before
+    assert not (here / "manifest.json").exists()
+
+
+def test_stale_temporary_files_are_removed(here):
+    # a temporary file of a write killed mid-way: its process id no longer runs
+    dead = 2**22 + 12345  # beyond the default pid range, so no process has it
+    stale = here / f".r.json.{dead}-0123456789ab.tmp"
+    stale.write_bytes(b"x" * 1000)
+    ours = here / f".s.json.{os.getpid()}-0123456789ab.tmp"  # a live writer's: kept
+    ours.write_bytes(b"y")
+    atomic_write_text(here / "r.json", "{}\n")
+    assert not stale.exists() and ours.exists()
+    assert remove_stale_temporaries(here) == []
+
+
+# ------------------------------------------------------------------------ distributed runs
+def _free_port() -> int:
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+class _Silent(BaseHTTPRequestHandler):
+    def log_message(self, *args):
+        pass
+
+
+def test_scheduler_address_of_a_web_server(capsys):
+    server = HTTPServer(("127.0.0.1", _free_port()), _Silent)
+    threading.Thread(target=server.serve_forever, daemon=True).start()
+    try:
+        start = time.monotonic()
+        with pytest.raises(InputError, match="no scheduler answered within 1 s"):
+            runner.make_executor(scheduler=f"tcp://127.0.0.1:{server.server_port}",
+                                 connect_timeout=1.0)
+        assert time.monotonic() - start < 30.0  # bounded, not a hang
+    finally:
+        server.shutdown()
+
+
+def test_scheduler_scheme_not_understood():
+    with pytest.raises(InputError, match="cannot connect"):
+        runner.make_executor(scheduler="http://127.0.0.1:1", connect_timeout=1.0)
+
+
+def test_scheduler_without_workers():
+    distributed = pytest.importorskip("distributed")
+    with distributed.LocalCluster(n_workers=0, processes=False, host="127.0.0.1",
+                                  dashboard_address=None) as cluster:
+        with pytest.raises(InputError, match="has no workers"):
+            runner.make_executor(scheduler=cluster.scheduler_address, connect_timeout=1.0)
+
+
+def crash_on_second(task):
+    """A worker that dies while solving the second section (a killed process)."""
+    if task.label == "second":
+        os._exit(1)
+    return runner.run_task(task)
+
+
+def stall_on_second(task):
+    """A worker that never finishes the second section."""
+    if task.label == "second":
+        time.sleep(600)
+    return runner.run_task(task)
+
+
+def _tasks():
+    return [SectionTask.of(label, (BodySource("naca0012"),), [0.0, 4.0], n_panels=40)
+            for label in ("first", "second", "third")]
+
+
+@pytest.mark.parametrize("work, fragment", [(crash_on_second, "worker running it was lost"),
+                                            (stall_on_second, "no section finished within")])
+def test_lost_or_stuck_worker_names_the_sections_and_keeps_the_rest(work, fragment):
+    tasks = _tasks()
+    ex = cf.ProcessPoolExecutor(1)
+    try:
+        with pytest.raises(IncompleteRunError, match=fragment) as info:
+            runner._collect(ex, tasks, [None] * 3, None, 5.0, work=work)
+    finally:
+        runner._abandon(ex)
+    exc = info.value
+    assert "second" in exc.unfinished and "'second'" in str(exc)
+    # the first section finished before the loss and is kept
+    assert exc.finished[0] is not None and exc.finished[0].label == "first"
+
+
+def test_incomplete_case_run_keeps_the_finished_rows(here, monkeypatch, capsys):
+    from panelflow.study.cases import load_case
+
+    (here / "c.toml").write_text("[[section]]\nspec = \"naca00{09..12:3}\"\n[conditions]\n"
+                                 "alpha = 0\npanels = 40\n")
+    case = load_case(here / "c.toml")
+    done = runner.run_task(case.tasks[0])
+
+    def broken_study(tasks, executor=None, progress=None, timeout=None):
+        raise IncompleteRunError("1 of 2 sections did not finish: 'naca0012'; lost",
+                                 [done, None], ["naca0012"])
+
+    monkeypatch.setattr(runner, "run_study", broken_study)
+    with pytest.raises(IncompleteRunError, match="the 1 finished are in"):
+        runner.run_case(case, output=here / "out")
+    rows = [ln for ln in (here / "out" / "polars.csv").read_text().splitlines()
+            if not ln.startswith("#")]
+    assert {ln.split(",")[0] for ln in rows[1:]} == {"naca0009"}
+    import json
+
+    manifest = json.loads((here / "out" / "manifest.json").read_text())
+    assert manifest["incomplete"] is True and manifest["unfinished"] == ["naca0012"]
