@@ -37,6 +37,8 @@ from panelflow.geometry.outline import Outline
 __all__ = [
     "naca4",
     "naca5",
+    "mean_line_4",
+    "mean_line_5",
     "circle",
     "ellipse",
     "joukowski",
@@ -171,16 +173,22 @@ def naca4(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
                          "(second digit 1-9)")
     x = _cosine_stations(n)
     yt = _thickness(x, t, closed_te)
-    if m == 0.0:
-        yc = np.zeros_like(x)
-        dyc = np.zeros_like(x)
-    else:
-        front = x < p
-        # Report 460 mean line: two parabolic arcs meeting at the max camber point x = p.
-        scale = np.where(front, m / p**2, m / (1.0 - p) ** 2)
-        yc = np.where(front, scale * (2 * p * x - x**2), scale * (1 - 2 * p + 2 * p * x - x**2))
-        dyc = 2.0 * scale * (p - x)
+    yc, dyc = mean_line_4(x, m, p)
     return _assemble(x, yt, yc, dyc, spec)
+
+
+def mean_line_4(x: np.ndarray, m: float, p: float) -> tuple[np.ndarray, np.ndarray]:
+    """NACA Report 460 mean line (two parabolic arcs meeting at the max camber point x = p).
+
+    Returns the ordinate and slope at the chord stations ``x``; zero camber gives zeros.
+    """
+    x = np.asarray(x, dtype=float)
+    if m == 0.0:
+        return np.zeros_like(x), np.zeros_like(x)
+    front = x < p
+    scale = np.where(front, m / p**2, m / (1.0 - p) ** 2)
+    yc = np.where(front, scale * (2 * p * x - x**2), scale * (1 - 2 * p + 2 * p * x - x**2))
+    return yc, 2.0 * scale * (p - x)
 
 
 def naca5(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
@@ -231,16 +239,26 @@ def naca5(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
                          "use 1-5 (mean lines 210 to 250)")
     if t <= 0.0:
         raise InputError(f"{spec}: thickness (last two digits) must be at least 01")
-    r, k1 = _MEAN_LINES_5[pos_digit]
-    k1 = k1 * lift_digit / 2.0
     x = _cosine_stations(n)
     yt = _thickness(x, t, closed_te)
+    yc, dyc = mean_line_5(x, lift_digit, pos_digit)
+    return _assemble(x, yt, yc, dyc, spec)
+
+
+def mean_line_5(x: np.ndarray, lift_digit: int, pos_digit: int) -> tuple[np.ndarray, np.ndarray]:
+    """NACA Report 610 non-reflexed mean line ``L P 0`` (a cubic joined to a straight line).
+
+    Returns the ordinate and slope at the chord stations ``x``; ``pos_digit`` must be 1 to 5.
+    """
+    x = np.asarray(x, dtype=float)
+    r, k1 = _MEAN_LINES_5[pos_digit]
+    k1 = k1 * lift_digit / 2.0
     front = x < r
     yc = np.where(front, k1 / 6.0 * (x**3 - 3 * r * x**2 + r**2 * (3 - r) * x),
                   k1 * r**3 / 6.0 * (1.0 - x))
     dyc = np.where(front, k1 / 6.0 * (3 * x**2 - 6 * r * x + r**2 * (3 - r)),
                    -k1 * r**3 / 6.0)
-    return _assemble(x, yt, yc, dyc, spec)
+    return yc, dyc
 
 
 # ---------------------------------------------------------------------------------- smooth bodies
