@@ -21,6 +21,9 @@ spaces, and never contain a path separator, so ``./naca0012`` always means a fil
                                in degrees (0 <= TAU <= 90)
 =============================  ==================================================================
 
+The modified 4-digit (``naca0012-64``), 16-series (``naca16-212``) and a-series mean line
+(``naca0010+a-series:0.8,0.3``) specs are in :mod:`panelflow.geometry.series`.
+
 The chord of the NACA sections is 1 (leading edge at the origin); the conformal-map sections keep
 the map's own coordinates (chord close to 4).
 """
@@ -47,8 +50,9 @@ __all__ = [
     "SPEC_HELP",
 ]
 
-SPEC_HELP = ("naca0012, naca2412, naca23012, naca0012-closed, circle, circle:R, ellipse:A,B, "
-             "joukowski:XC,YC, karman-trefftz:XC,YC,TAU")
+SPEC_HELP = ("naca0012, naca2412, naca23012, naca0012-closed, naca0012-64, naca16-212, "
+             "naca0010+a-series:0.8,0.3, circle, circle:R, ellipse:A,B, joukowski:XC,YC, "
+             "karman-trefftz:XC,YC,TAU")
 
 CLOSED_SUFFIX = "-closed"
 MIN_SECTION_POINTS = 11  # fewer cannot show a leading edge and a trailing edge at once
@@ -482,12 +486,18 @@ def parse_spec(text: str, n_points: int | None = None) -> Outline | None:
     kw = {} if n_points is None else {"n_points": n_points}
     if "/" in t or "\\" in t:
         return None
+    from panelflow.geometry.series import parse_series_spec  # imports this module
+
+    outline = parse_series_spec(t, n_points)
+    if outline is not None:
+        return outline
     m = _NACA_RE.fullmatch(t)
     if m:
         body = _NACA_BODY_RE.fullmatch(m.group(1))
         if body is None or len(body.group(1)) not in (4, 5):
             raise InputError(f"{t}: a NACA spec needs 4 or 5 digits (e.g. naca0012, naca23012), "
-                             f"optionally followed by {CLOSED_SUFFIX}")
+                             f"optionally followed by -IM (modified thickness, e.g. naca0012-64) "
+                             f"and {CLOSED_SUFFIX}, or is a 16-series naca16-LTT")
         digits, closed = body.group(1), body.group(2) is not None
         make = naca4 if len(digits) == 4 else naca5
         return make(digits, closed_te=closed, **kw)
