@@ -337,3 +337,17 @@ def test_families_over_the_new_parameters(family, members):
     for m, o in zip(members, outlines):
         assert measure(o).thickness == pytest.approx(int(m[6:8] if not m.startswith("naca16")
                                                          else m[8:10]) / 100, rel=1e-3)
+
+
+def test_case_files_and_commands_take_the_new_specs(tmp_path, capsys):
+    from conftest import run
+
+    from panelflow.study.cases import load_case
+
+    case = tmp_path / "families.toml"
+    case.write_text('[[section]]\nspec = "naca16-{1..2}12"\n\n[[section]]\n'
+                    'spec = "naca0010+a-series:0.8,0.3"\n\n[conditions]\nalpha = "0:4:2"\n')
+    assert load_case(case).labels == ("naca16-112", "naca16-212", "naca0010+a-series:0.8,0.3")
+    code, out, err = run(capsys, "compare", "naca0012-{4,6}4", "--alpha", "2")
+    assert code == 0, err
+    assert "naca0012-44" in out and "naca0012-64" in out
