@@ -39,7 +39,7 @@ from panelflow.errors import GeometryError, InputError
 from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline
 
 __all__ = ["ChordFrame", "SectionMeasures", "SectionShape", "measure", "measure_shape",
-           "decompose", "MEASURE_LABELS"]
+           "decompose", "trailing_edge_kind", "MEASURE_LABELS"]
 
 # A surface point more than this (in chords) behind an earlier one makes the surface no
 # function y(x); smaller reversals are noise in the points (sorted by x, with a note).
