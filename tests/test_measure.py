@@ -207,3 +207,12 @@ def test_decompose_round_trip(spec):
     dense = CubicSpline(s, pts)(np.linspace(0, s[-1], 200001))
     gap = cKDTree(dense).query(again.points)[0].max() / foil.chord
     assert gap < 2e-5
+
+
+def test_symmetric_table_with_rounded_points_has_no_camber():
+    # the demo flap: a symmetric section, 81 points with six decimals on a 0.3 chord, drawn at
+    # 10 degrees; rounding and the surfaces' different stations leave 2.4e-6 chords of "camber"
+    flap = pf.load_outlines("geometries/front_foil_with_flap.dat")[1]
+    m = measure(flap)
+    assert m.camber == 0.0 and np.isnan(m.camber_position)
+    assert m.thickness == pytest.approx(0.12, rel=1e-4)
