@@ -12,7 +12,7 @@ import os
 import socket
 import threading
 import time
-from http.server import BaseHTTPRequestHandler, HTTPServer
+from http.server import BaseHTTPRequestHandler, ThreadingHTTPServer
 from pathlib import Path
 
 import pytest
@@ -183,12 +183,15 @@ def _free_port() -> int:
 
 
 class _Silent(BaseHTTPRequestHandler):
+    timeout = 5.0  # a client that never sends a request line is dropped
+
     def log_message(self, *args):
         pass
 
 
 def test_scheduler_address_of_a_web_server(capsys):
-    server = HTTPServer(("127.0.0.1", _free_port()), _Silent)
+    server = ThreadingHTTPServer(("127.0.0.1", _free_port()), _Silent)
+    server.daemon_threads = True
     threading.Thread(target=server.serve_forever, daemon=True).start()
     try:
         start = time.monotonic()
@@ -207,8 +210,8 @@ def test_scheduler_scheme_not_understood():
 
 def test_scheduler_without_workers():
     distributed = pytest.importorskip("distributed")
-    with distributed.LocalCluster(n_workers=0, processes=False, host="127.0.0.1",
-                                  dashboard_address=None) as cluster:
+    with distributed.LocalCluster(n_workers=0, processes=True, host="127.0.0.1",
+                                  dashboard_address=":0") as cluster:
         with pytest.raises(InputError, match="has no workers"):
             runner.make_executor(scheduler=cluster.scheduler_address, connect_timeout=1.0)
 

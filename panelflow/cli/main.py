@@ -241,6 +241,107 @@ def _cmd_section(ns) -> int:
     return 0
 
 
+def _cmd_reshape(ns) -> int:
+    from pathlib import Path
+
+    from panelflow.errors import OutputError
+    from panelflow.geometry import edits
+    from panelflow.geometry.readers import write_outline_table
+    from panelflow.output.reshape_report import reshape_json, reshape_table
+
+    def one_body(arg, what):
+        found = load_bodies([arg])
+        if len(found) != 1:
+            raise InputError(f"{what} {arg}: one body needed, it holds {len(found)} "
+                             f"({', '.join(o.name for o in found)}); give it with @name=... "
+                             "from a file of its own")
+        return found[0]
+
+    foil = one_body(ns.outline, "reshape")
+    _guard(ns, [ns.output])
+    if ns.output and Path(ns.output).exists() and not ns.force:
+        raise OutputError(f"{ns.output}: exists; not overwritten (use --force to replace it)")
+    steps = []  # in the order the help text gives
+    if ns.blend_with is not None:
+        weight = 0.5 if ns.blend_weight is None else ns.blend_weight
+        steps.append(edits.Blend(one_body(ns.blend_with, "--blend-with"), weight))
+    elif ns.blend_weight is not None:
+        raise InputError("--blend-weight needs --blend-with OUTLINE")
+    if ns.thickness_position is not None:
+        steps.append(edits.ThicknessPosition(ns.thickness_position))
+    if ns.camber_position is not None:
+        steps.append(edits.CamberPosition(ns.camber_position))
+    if ns.thickness is not None or ns.thickness_scale is not None:
+        steps.append(edits.Thickness(scale=ns.thickness_scale, value=ns.thickness))
+    if ns.camber is not None or ns.camber_scale is not None:
+        steps.append(edits.Camber(scale=ns.camber_scale, value=ns.camber))
+    if ns.leading_edge_radius is not None or ns.leading_edge_radius_scale is not None:
+        steps.append(edits.LeadingEdgeRadius(value=ns.leading_edge_radius,
+                                             scale=ns.leading_edge_radius_scale,
+                                             blend_to=ns.leading_edge_blend_to))
+    elif ns.leading_edge_blend_to is not None:
+        raise InputError("--leading-edge-blend-to goes with --leading-edge-radius(-scale)")
+    if ns.trailing_edge_thickness is not None:
+        steps.append(edits.TrailingEdgeThickness(ns.trailing_edge_thickness,
+                                                 blend_from=ns.trailing_edge_blend_from))
+    elif ns.trailing_edge_blend_from is not None:
+        raise InputError("--trailing-edge-blend-from goes with --trailing-edge-thickness")
+    if not steps and not ns.smooth:
+        raise InputError("nothing to change: give an edit such as --thickness 0.12, or --smooth")
+    result = edits.reshape(foil, steps, smooth=ns.smooth, n_points=ns.points, name=ns.name)
+    if ns.output:
+        write_outline_table(result.outline, ns.output, overwrite=ns.force)
+    sys.stdout.write(reshape_json(result) if ns.json else reshape_table(result))
+    if ns.output:
+        print(f"wrote {ns.output} ({len(result.outline.points)} points)", file=sys.stderr)
+    return 0
+
+
+def _add_reshape_parser(sub, common) -> None:
+    e = sub.add_parser(
+        "reshape", parents=[common],
+        help="edit a section (thickness, camber, their positions, nose radius, trailing edge, "
+        "blend, smoothing) and show its measures before and after",
+        description="Edit one section and print its measures before and after. Lengths are "
+        "fractions of the chord. The edits apply in this order: --smooth, --blend-with, "
+        "positions, thickness, camber, leading-edge radius, trailing-edge thickness.")
+    e.add_argument("outline", metavar="OUTLINE", help="file or section spec (one body)")
+    e.add_argument("-o", "--output", metavar="FILE",
+                   help="write the new section as a coordinate table (without: table only)")
+    e.add_argument("--force", action="store_true", help="replace an existing file")
+    e.add_argument("--json", action="store_true", help="print the measures as JSON")
+    e.add_argument("--points", type=int, metavar="N",
+                   help="points of the new outline (default: the original's, at least 201)")
+    e.add_argument("--name", metavar="TEXT", help="name of the new section")
+    e.add_argument("--smooth", action="store_true",
+                   help="smooth noisy points first (strength by generalised cross-validation)")
+    e.add_argument("--blend-with", metavar="OUTLINE", help="mix in another section")
+    e.add_argument("--blend-weight", type=float, metavar="W",
+                   help="share of the --blend-with section, 0 to 1 (default 0.5)")
+    e.add_argument("--thickness-position", type=float, metavar="X",
+                   help="move the maximum thickness to x/c = X")
+    e.add_argument("--camber-position", type=float, metavar="X",
+                   help="move the maximum camber to x/c = X")
+    th = e.add_mutually_exclusive_group()
+    th.add_argument("--thickness", type=float, metavar="T", help="maximum thickness T chords")
+    th.add_argument("--thickness-scale", type=float, metavar="K", help="thickness times K")
+    ca = e.add_mutually_exclusive_group()
+    ca.add_argument("--camber", type=float, metavar="C", help="maximum camber C chords")
+    ca.add_argument("--camber-scale", type=float, metavar="K", help="camber line times K")
+    le = e.add_mutually_exclusive_group()
+    le.add_argument("--leading-edge-radius", type=float, metavar="R",
+                    help="nose radius R chords")
+    le.add_argument("--leading-edge-radius-scale", type=float, metavar="K",
+                    help="nose radius times K")
+    e.add_argument("--leading-edge-blend-to", type=float, metavar="X",
+                   help="x/c where the nose change has faded out (default: maximum thickness)")
+    e.add_argument("--trailing-edge-thickness", type=float, metavar="G",
+                   help="trailing-edge thickness G chords (0 closes it)")
+    e.add_argument("--trailing-edge-blend-from", type=float, metavar="X",
+                   help="x/c where the trailing-edge change starts (default: maximum thickness)")
+    e.set_defaults(func=_cmd_reshape)
+
+
 def _solving_parent(angles_help: str) -> argparse.ArgumentParser:
     """Options of every command that solves: geometry, operating point, --force."""
     g = argparse.ArgumentParser(add_help=False)
@@ -352,6 +453,8 @@ def build_parser() -> argparse.ArgumentParser:
     w.add_argument("--points", type=int, metavar="N", help="number of points")
     w.add_argument("--force", action="store_true", help="replace an existing file")
     w.set_defaults(func=_cmd_section)
+
+    _add_reshape_parser(sub, common)
     return p
 
 

@@ -183,7 +183,9 @@ def input_files(ns) -> list:
     import os
 
     files = []
-    for arg in getattr(ns, "outlines", None) or []:
+    args = list(getattr(ns, "outlines", None) or [])
+    args += [getattr(ns, k) for k in ("outline", "blend_with") if getattr(ns, k, None)]
+    for arg in args:
         source, _ = arguments.split_transforms(arg)
         if os.path.isfile(source):
             files.append(source)

@@ -21,6 +21,9 @@ spaces, and never contain a path separator, so ``./naca0012`` always means a fil
                                in degrees (0 <= TAU <= 90)
 =============================  ==================================================================
 
+The modified 4-digit (``naca0012-64``), 16-series (``naca16-212``) and a-series mean line
+(``naca0010+a-series:0.8,0.3``) specs are in :mod:`panelflow.geometry.series`.
+
 The chord of the NACA sections is 1 (leading edge at the origin); the conformal-map sections keep
 the map's own coordinates (chord close to 4).
 """
@@ -37,6 +40,8 @@ from panelflow.geometry.outline import Outline
 __all__ = [
     "naca4",
     "naca5",
+    "mean_line_4",
+    "mean_line_5",
     "circle",
     "ellipse",
     "joukowski",
@@ -45,8 +50,9 @@ __all__ = [
     "SPEC_HELP",
 ]
 
-SPEC_HELP = ("naca0012, naca2412, naca23012, naca0012-closed, circle, circle:R, ellipse:A,B, "
-             "joukowski:XC,YC, karman-trefftz:XC,YC,TAU")
+SPEC_HELP = ("naca0012, naca2412, naca23012, naca0012-closed, naca0012-64, naca16-212, "
+             "naca0010+a-series:0.8,0.3, circle, circle:R, ellipse:A,B, joukowski:XC,YC, "
+             "karman-trefftz:XC,YC,TAU")
 
 CLOSED_SUFFIX = "-closed"
 MIN_SECTION_POINTS = 11  # fewer cannot show a leading edge and a trailing edge at once
@@ -171,16 +177,22 @@ def naca4(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
                          "(second digit 1-9)")
     x = _cosine_stations(n)
     yt = _thickness(x, t, closed_te)
-    if m == 0.0:
-        yc = np.zeros_like(x)
-        dyc = np.zeros_like(x)
-    else:
-        front = x < p
-        # Report 460 mean line: two parabolic arcs meeting at the max camber point x = p.
-        scale = np.where(front, m / p**2, m / (1.0 - p) ** 2)
-        yc = np.where(front, scale * (2 * p * x - x**2), scale * (1 - 2 * p + 2 * p * x - x**2))
-        dyc = 2.0 * scale * (p - x)
+    yc, dyc = mean_line_4(x, m, p)
     return _assemble(x, yt, yc, dyc, spec)
+
+
+def mean_line_4(x: np.ndarray, m: float, p: float) -> tuple[np.ndarray, np.ndarray]:
+    """NACA Report 460 mean line (two parabolic arcs meeting at the max camber point x = p).
+
+    Returns the ordinate and slope at the chord stations ``x``; zero camber gives zeros.
+    """
+    x = np.asarray(x, dtype=float)
+    if m == 0.0:
+        return np.zeros_like(x), np.zeros_like(x)
+    front = x < p
+    scale = np.where(front, m / p**2, m / (1.0 - p) ** 2)
+    yc = np.where(front, scale * (2 * p * x - x**2), scale * (1 - 2 * p + 2 * p * x - x**2))
+    return yc, 2.0 * scale * (p - x)
 
 
 def naca5(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
@@ -231,16 +243,26 @@ def naca5(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
                          "use 1-5 (mean lines 210 to 250)")
     if t <= 0.0:
         raise InputError(f"{spec}: thickness (last two digits) must be at least 01")
-    r, k1 = _MEAN_LINES_5[pos_digit]
-    k1 = k1 * lift_digit / 2.0
     x = _cosine_stations(n)
     yt = _thickness(x, t, closed_te)
+    yc, dyc = mean_line_5(x, lift_digit, pos_digit)
+    return _assemble(x, yt, yc, dyc, spec)
+
+
+def mean_line_5(x: np.ndarray, lift_digit: int, pos_digit: int) -> tuple[np.ndarray, np.ndarray]:
+    """NACA Report 610 non-reflexed mean line ``L P 0`` (a cubic joined to a straight line).
+
+    Returns the ordinate and slope at the chord stations ``x``; ``pos_digit`` must be 1 to 5.
+    """
+    x = np.asarray(x, dtype=float)
+    r, k1 = _MEAN_LINES_5[pos_digit]
+    k1 = k1 * lift_digit / 2.0
     front = x < r
     yc = np.where(front, k1 / 6.0 * (x**3 - 3 * r * x**2 + r**2 * (3 - r) * x),
                   k1 * r**3 / 6.0 * (1.0 - x))
     dyc = np.where(front, k1 / 6.0 * (3 * x**2 - 6 * r * x + r**2 * (3 - r)),
                    -k1 * r**3 / 6.0)
-    return _assemble(x, yt, yc, dyc, spec)
+    return yc, dyc
 
 
 # ---------------------------------------------------------------------------------- smooth bodies
@@ -464,12 +486,18 @@ def parse_spec(text: str, n_points: int | None = None) -> Outline | None:
     kw = {} if n_points is None else {"n_points": n_points}
     if "/" in t or "\\" in t:
         return None
+    from panelflow.geometry.series import parse_series_spec  # imports this module
+
+    outline = parse_series_spec(t, n_points)
+    if outline is not None:
+        return outline
     m = _NACA_RE.fullmatch(t)
     if m:
         body = _NACA_BODY_RE.fullmatch(m.group(1))
         if body is None or len(body.group(1)) not in (4, 5):
             raise InputError(f"{t}: a NACA spec needs 4 or 5 digits (e.g. naca0012, naca23012), "
-                             f"optionally followed by {CLOSED_SUFFIX}")
+                             f"optionally followed by -IM (modified thickness, e.g. naca0012-64) "
+                             f"and {CLOSED_SUFFIX}, or is a 16-series naca16-LTT")
         digits, closed = body.group(1), body.group(2) is not None
         make = naca4 if len(digits) == 4 else naca5
         return make(digits, closed_te=closed, **kw)
