@@ -15,6 +15,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from panelflow import threads
+
 from panelflow.geometry.outline import SMOOTH
 from panelflow.flow.solver import System
 
@@ -155,6 +157,7 @@ def unit_coefficients(basis: dict, c: float):
     return (-2.0 * basis["circulation"].sum(axis=1) / c, -basis["moment"].sum(axis=1) / c**2)
 
 
+@threads.blas_single
 def coefficients(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> Coefficients:
     """Total lift, pressure drag and moment coefficients at the given angles (see ``evaluate``)."""
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
@@ -215,6 +218,7 @@ def _basis_loads(system: System, zr: complex) -> dict:
     return out
 
 
+@threads.blas_single
 def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> SurfaceSolution:
     """Surface Cp, forces and moments at the given angles.
 

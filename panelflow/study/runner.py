@@ -31,12 +31,14 @@ import json
 import os
 import platform
 import sys
+import threading
 import time
 from dataclasses import dataclass, field, fields
 from pathlib import Path
 
 import numpy as np
 
+from panelflow import threads
 from panelflow.version import __version__
 from panelflow.geometry.arguments import transformed, unique_names
 from panelflow.errors import InputError, OutputError, PanelflowError
@@ -346,9 +348,14 @@ def run_task(task: SectionTask):
     """
     from panelflow.output.tables import polar
 
+    # A task on a thread of its own (a Dask worker's, an executor's) runs on that thread only:
+    # that executor already shares the cores out. BLAS on one thread everywhere gives the same
+    # bits in this process, in a worker process and on a Dask worker.
+    own_thread = threading.current_thread() is threading.main_thread()
     try:
-        analysis = solve_task(task)
-        return polar(analysis, task.label, _extra_columns(task, analysis))
+        with threads.one_blas_thread(), threads.limited(threads.cap() if own_thread else 1):
+            analysis = solve_task(task)
+            return polar(analysis, task.label, _extra_columns(task, analysis))
     except PanelflowError as exc:
         text = str(exc)
         prefix = f"section {task.label!r}"
@@ -492,7 +499,8 @@ def make_executor(workers: int | None = None, scheduler: str | None = None):
         raise InputError(f"--workers {workers}: give a whole number of at least 1")
     if workers == 1:
         return None
-    return cf.ProcessPoolExecutor(int(workers), initializer=_one_blas_thread)
+    share = max(1, threads.cap() // int(workers))
+    return cf.ProcessPoolExecutor(int(workers), initializer=_worker_threads, initargs=(share,))
 
 
 @contextlib.contextmanager
@@ -510,13 +518,17 @@ def open_executor(workers: int | None = None, scheduler: str | None = None):
 _LIMITS = []  # keeps the worker's thread limit alive
 
 
-def _one_blas_thread() -> None:
-    """Worker-process start: one BLAS thread per process, since the processes share the cores.
+def _worker_threads(share: int = 1) -> None:
+    """Worker-process start: one BLAS thread, and panelflow's threads capped at this process's
+    share of the cores (the processes share them; more threads would only wait for each other).
 
     OpenBLAS waits for work by spinning, so two processes with two BLAS threads each on two cores
-    ran a 2-worker study 4 times slower than one process (measured, scripts/bench.py); Dask's
-    worker processes get the same limit from its OPENBLAS_NUM_THREADS=1 default.
+    ran a 2-worker study 4 times slower than one process (measured, scripts/bench.py). The cap
+    goes into the environment, where :func:`panelflow.threads.cap` reads it, so it holds for
+    everything the worker runs; results do not depend on it (see :mod:`panelflow.threads`).
     """
+    user = threads.user_cap()
+    os.environ[threads.ENV_VARIABLE] = str(share if user is None else min(user, share))
     try:
         from threadpoolctl import threadpool_limits
     except ImportError:  # pragma: no cover - a dependency; without it only speed suffers
