@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import shapely
 
+from panelflow import threads
 from panelflow.flow import influence
 from panelflow.errors import InputError
 from panelflow.geometry.outline import BLUNT
@@ -37,34 +38,7 @@ MAX_GRID_POINTS = 25_000_000
 _TWO_PI = 2.0 * np.pi
 
 
-def _unit_velocity_kernel(points, panels, coef_start, coef_delta):
-    """Induced complex velocity (u - i v) of all panels at ``points`` for given unit strengths.
-
-    ``coef_start`` and ``coef_delta`` (n_panels, k) hold, per panel, conj(t) (-i / 2 pi) times the
-    start-node strength and the end-minus-start strength of each of ``k`` solutions.
-    """
-    x1, y1 = panels.z1.real, panels.z1.imag
-    tx, ty = panels.tangent.real, panels.tangent.imag
-    dx = points.real[:, None] - x1[None, :]
-    dy = points.imag[:, None] - y1[None, :]
-    x = dx * tx + dy * ty
-    y = dy * tx - dx * ty
-    L = panels.length[None, :]
-    xm = x - L
-    y2 = y * y
-    r1 = x * x + y2
-    r2 = xm * xm + y2
-    # Lambda = log(zeta / (zeta - L)), real and imaginary parts (cut on the panel only)
-    lam_r = 0.5 * np.log(np.maximum(r1, 1e-300) / np.maximum(r2, 1e-300))
-    lam_i = np.arctan2(-y * L, x * xm + y2)
-    # j1 = (zeta Lambda - L) / L
-    j_r = (x * lam_r - y * lam_i) / L - 1.0
-    j_i = (x * lam_i + y * lam_r) / L
-    lam = lam_r + 1j * lam_i
-    j1 = j_r + 1j * j_i
-    return lam @ coef_start + j1 @ coef_delta
-
-
+@threads.blas_single
 def induced_velocity(system: System, points, strengths=None) -> np.ndarray:
     """Velocity induced by the panels at ``points`` (no freestream), for nodal strengths.
 
@@ -88,8 +62,7 @@ def induced_velocity(system: System, points, strengths=None) -> np.ndarray:
     coef_start = rot * g[p.start]
     coef_delta = rot * (g[p.end] - g[p.start])
     pts = np.asarray(points, complex).ravel()
-    w = influence.blockwise(lambda blk: _unit_velocity_kernel(blk, p, coef_start, coef_delta),
-                            pts, g.shape[1], dtype=complex, pairs_per_point=p.n_panels)
+    w = influence.node_velocity(pts, p, coef_start, coef_delta)
     if len(p.base_body):
         bz1, bz2 = p.base_z1, p.base_z2
         bl = np.abs(bz2 - bz1)
@@ -246,6 +219,7 @@ def _surface_layer(system: System, q, d, j, t):
     return zs, w_surf, layer, n_out
 
 
+@threads.blas_single
 def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
     """Velocity of the two unit solutions (freestream included) and the inside mask.
 
