@@ -170,7 +170,7 @@ static void atan2_loop(const double *restrict y, const double *restrict x, doubl
 static PyObject *py_log(PyObject *self, PyObject *args)
 {
     PyObject *o[2];
-    pf_buf b[2] = {{0}};
+    pf_buf b[2] = {0};
     if (!PyArg_ParseTuple(args, "OO", &o[0], &o[1]))
         return NULL;
     if (pf_get(o[0], &b[0], 0, 8, "x") || pf_get(o[1], &b[1], 1, 8, "out"))
@@ -192,7 +192,7 @@ fail:
 static PyObject *py_atan2(PyObject *self, PyObject *args)
 {
     PyObject *o[3];
-    pf_buf b[3] = {{0}};
+    pf_buf b[3] = {0};
     if (!PyArg_ParseTuple(args, "OOO", &o[0], &o[1], &o[2]))
         return NULL;
     if (pf_get(o[0], &b[0], 0, 8, "y") || pf_get(o[1], &b[1], 0, 8, "x") ||
@@ -248,7 +248,7 @@ static void vortex_psi_rows(const double *restrict px, const double *restrict py
 static PyObject *py_vortex_psi(PyObject *self, PyObject *args)
 {
     PyObject *o[9];
-    pf_buf b[9] = {{0}};
+    pf_buf b[9] = {0};
     static const char *names[9] = {"px", "py", "z1x", "z1y", "tx", "ty", "length", "a", "b"};
     if (!PyArg_ParseTuple(args, "OOOOOOOOO", &o[0], &o[1], &o[2], &o[3], &o[4], &o[5], &o[6],
                           &o[7], &o[8]))
@@ -455,7 +455,7 @@ static PyObject *py_psi_nodes(PyObject *self, PyObject *args)
 {
     /* px, py, 8 chain arrays, col_start, col_end, out (rows x stride) */
     PyObject *o[13];
-    pf_buf b[13] = {{0}};
+    pf_buf b[13] = {0};
     Py_ssize_t stride;
     double *work = NULL;
     if (!PyArg_ParseTuple(args, "OOOOOOOOOOOOOn", &o[0], &o[1], &o[2], &o[3], &o[4], &o[5],
@@ -501,7 +501,7 @@ static PyObject *py_velocity_nodes(PyObject *self, PyObject *args)
 {
     /* px, py, 8 chain arrays, coef (k x 4 x p), out (n x k complex as 2 doubles) */
     PyObject *o[12];
-    pf_buf b[12] = {{0}};
+    pf_buf b[12] = {0};
     double *work = NULL;
     if (!PyArg_ParseTuple(args, "OOOOOOOOOOOO", &o[0], &o[1], &o[2], &o[3], &o[4], &o[5], &o[6],
                           &o[7], &o[8], &o[9], &o[10], &o[11]))
@@ -534,6 +534,74 @@ fail:
     return NULL;
 }
 
+/* ------------------------------------------------------------------------- nearest panel */
+PF_CLONES
+static void segment_distances(double px, double py, const double *restrict z1x,
+                              const double *restrict z1y, const double *restrict tx,
+                              const double *restrict ty, const double *restrict len, Py_ssize_t p,
+                              double *restrict d, double *restrict t)
+{
+    for (Py_ssize_t j = 0; j < p; j++) {
+        double dx = px - z1x[j], dy = py - z1y[j];
+        double rx = dx * tx[j] + dy * ty[j], ry = dy * tx[j] - dx * ty[j];
+        double f = rx / len[j];
+        f = f < 0.0 ? 0.0 : f;
+        f = f > 1.0 ? 1.0 : f;
+        double ex = rx - f * len[j];
+        d[j] = ex * ex + ry * ry;
+        t[j] = f;
+    }
+}
+
+static PyObject *py_nearest_panel(PyObject *self, PyObject *args)
+{
+    /* px, py, z1x, z1y, tx, ty, length, d_out, j_out (int64), t_out */
+    PyObject *o[10];
+    pf_buf b[10] = {0};
+    double *work = NULL;
+    static const char *names[10] = {"px", "py", "z1x", "z1y", "tx", "ty", "length", "d", "j", "t"};
+    if (!PyArg_ParseTuple(args, "OOOOOOOOOO", &o[0], &o[1], &o[2], &o[3], &o[4], &o[5], &o[6],
+                          &o[7], &o[8], &o[9]))
+        return NULL;
+    for (int k = 0; k < 10; k++)
+        if (pf_get(o[k], &b[k], k >= 7, 8, names[k]))
+            goto fail;
+    Py_ssize_t n = PF_LEN(b[0]), p = PF_LEN(b[2]);
+    if (p < 1 || PF_LEN(b[1]) != n || PF_LEN(b[3]) != p || PF_LEN(b[4]) != p ||
+        PF_LEN(b[5]) != p || PF_LEN(b[6]) != p || PF_LEN(b[7]) != n || PF_LEN(b[8]) != n ||
+        PF_LEN(b[9]) != n) {
+        PyErr_SetString(PyExc_ValueError, "nearest_panel: inconsistent lengths");
+        goto fail;
+    }
+    work = malloc(sizeof(double) * 2 * p);
+    if (!work) {
+        PyErr_NoMemory();
+        goto fail;
+    }
+    Py_BEGIN_ALLOW_THREADS
+    const double *px = PF_D(b[0]), *py = PF_D(b[1]);
+    double *dist = work, *frac = work + p;
+    for (Py_ssize_t i = 0; i < n; i++) {
+        segment_distances(px[i], py[i], PF_D(b[2]), PF_D(b[3]), PF_D(b[4]), PF_D(b[5]),
+                          PF_D(b[6]), p, dist, frac);
+        Py_ssize_t best = 0; /* the first of equal distances, as numpy's argmin */
+        for (Py_ssize_t j = 1; j < p; j++)
+            if (dist[j] < dist[best])
+                best = j;
+        PF_D(b[7])[i] = sqrt(dist[best]);
+        PF_I(b[8])[i] = best;
+        PF_D(b[9])[i] = frac[best];
+    }
+    Py_END_ALLOW_THREADS
+    free(work);
+    pf_release(b, 10);
+    Py_RETURN_NONE;
+fail:
+    free(work);
+    pf_release(b, 10);
+    return NULL;
+}
+
 static PyMethodDef methods[] = {
     {"log", py_log, METH_VARARGS, "log(x, out): natural logarithm, x clamped to 1e-300."},
     {"atan2", py_atan2, METH_VARARGS, "atan2(y, x, out): angle of (x, y)."},
@@ -543,6 +611,8 @@ static PyMethodDef methods[] = {
      "psi_nodes(px, py, chains..., col_start, col_end, out, stride): node-summed rows."},
     {"velocity_nodes", py_velocity_nodes, METH_VARARGS,
      "velocity_nodes(px, py, chains..., coef, out): induced velocity of k solutions."},
+    {"nearest_panel", py_nearest_panel, METH_VARARGS,
+     "nearest_panel(px, py, z1x, z1y, tx, ty, length, d, j, t): nearest point on the panels."},
     {NULL, NULL, 0, NULL}};
 
 static struct PyModuleDef module = {PyModuleDef_HEAD_INIT, "_kernels",

@@ -388,6 +388,52 @@ def node_velocity(points, panels, start, delta, kernel: str | None = None) -> np
     return out
 
 
+def nearest_panel(points, z1, tangent, length, kernel: str | None = None):
+    """Nearest point on a set of panels: distance, panel index and fraction along it.
+
+    Parameters
+    ----------
+    points : ndarray of complex, shape (n,)
+    z1, tangent, length : ndarray, shape (p,)
+    kernel : {None, "compiled", "numpy"}
+
+    Returns
+    -------
+    d : ndarray, shape (n,)
+    j : ndarray of int, shape (n,)
+        The first panel at the smallest distance.
+    t : ndarray, shape (n,)
+        Fraction of panel ``j``'s length from its start, in [0, 1].
+    """
+    points = np.asarray(points, complex).ravel()
+    z1 = np.asarray(z1, complex).ravel()
+    tangent = np.asarray(tangent, complex).ravel()
+    length = np.ascontiguousarray(length, float).ravel()
+    n, p = len(points), len(z1)
+    d, j, t = np.empty(n), np.empty(n, np.int64), np.empty(n)
+    blocks = _row_blocks(n, p)
+    if _use_compiled(kernel):
+        args = (np.ascontiguousarray(z1.real), np.ascontiguousarray(z1.imag),
+                np.ascontiguousarray(tangent.real), np.ascontiguousarray(tangent.imag), length)
+        px, py = np.ascontiguousarray(points.real), np.ascontiguousarray(points.imag)
+
+        def job(i):
+            sl = blocks[i]
+            _compiled.nearest_panel(px[sl], py[sl], *args, d[sl], j[sl], t[sl])
+    else:
+        def job(i):
+            sl = blocks[i]
+            rel = (points[sl, None] - z1[None, :]) * np.conj(tangent)[None, :]
+            frac = np.clip(rel.real / length[None, :], 0.0, 1.0)
+            dist = np.abs(rel - frac * length[None, :])
+            k = np.argmin(dist, axis=1)
+            r = np.arange(len(k))
+            d[sl], j[sl], t[sl] = dist[r, k], k, frac[r, k]
+
+    threads.run_blocks(job, len(blocks))
+    return d, j, t
+
+
 def vortex_velocity(points, z1, tangent, length):
     """Complex velocity ``u - i v`` at ``points`` per unit nodal vorticity of linear vortex panels.
 
