@@ -94,7 +94,16 @@ class _Spline:
         ab[2, 0], ab[1, 1], ab[0, 2] = h[1], -(h[0] + h[1]), h[0]
         ab[4, n - 2], ab[3, n - 1], ab[2, n] = h[n - 1], -(h[n - 2] + h[n - 1]), h[n - 2]
         self.t, self.y, self.h = t, y, h
-        self.m = scipy.linalg.solve_banded((2, 2), ab, rhs)
+        # LAPACK's banded solver directly (scipy.linalg.solve_banded's checks cost as much);
+        # dgbsv wants two more rows of band storage for the fill-in of the pivoting
+        lub = np.zeros((7, n + 1))
+        lub[2:] = ab
+        _, _, m, info = scipy.linalg.lapack.dgbsv(2, 2, lub, rhs, overwrite_ab=True,
+                                                  overwrite_b=True)
+        if info != 0:
+            raise GeometryError("spline through the outline points cannot be fitted "
+                                "(repeated points?)")
+        self.m = m
 
     def _where(self, tq: np.ndarray):
         t, h = self.t, self.h
