@@ -286,7 +286,7 @@ def info_cli(repeats: int) -> dict:
             "unit": "s, wall time of a new process"}
 
 
-def info_large_lu(repeats: int, n: int = 1602) -> dict:
+def info_large_lu(repeats: int, n: int = solver.LU_BLOCKED_FROM + 2) -> dict:
     """panelflow's factorisation (blocked from LU_BLOCKED_FROM, on all cores) against LAPACK's
     on one thread and on all cores (whose bits depend on the thread count)."""
     rng = np.random.default_rng(n)

@@ -189,11 +189,14 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return matrix, rhs, base_factor
 
 
-# Largest size factorised by LAPACK in one call; larger systems use the blocked factorisation
-# below, whose trailing updates run on panelflow's threads. Chosen by size only, so the bits of
-# a result never depend on the number of threads (measured on 2 cores, scripts/bench.py: below
-# about 1000 unknowns a second thread gains nothing).
-LU_BLOCKED_FROM = 1000
+# From this size on, the blocked factorisation below, whose trailing updates run on panelflow's
+# threads; below it LAPACK on one thread. Chosen by size only, so the bits of a result never
+# depend on the number of threads (LAPACK's own threading changes them). Measured on the shared
+# 2-core development machine (scripts/bench.py): the blocked LU took 1.2-1.5 times LAPACK's
+# one-thread time on one thread, and its second thread did not pay that back while the other
+# core was busy; so it is kept for systems too large to be common (over 2500 unknowns: a dozen
+# bodies at 200 panels).
+LU_BLOCKED_FROM = 2500
 # Column width of the blocked factorisation's panels and of its update chunks.
 LU_PANEL = 128
 LU_CHUNK = 256
@@ -239,7 +242,10 @@ def _lu_blocked(a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         def update(i, lower=lower, starts=starts, top=k + b):
             c0 = starts[i]
             c1 = min(n, c0 + LU_CHUNK)
-            a[top:, c0:c1] -= lower @ a[top - b:top, c0:c1]
+            # the product in Fortran order, like the block it updates: one streaming pass
+            prod = np.empty((n - top, c1 - c0), order="F")
+            np.matmul(lower, a[top - b:top, c0:c1], out=prod)
+            a[top:, c0:c1] -= prod
 
         threads.run_blocks(update, len(starts))
     return a, piv
