@@ -40,6 +40,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import scipy.linalg
 
+from panelflow import threads
 from panelflow.geometry import check
 from panelflow.flow import influence
 from panelflow.analysis.inviscid import (DEFAULT_PANELS, ORDER, ROUND_OFF, SAFETY_FACTOR, checked_inputs,
@@ -348,6 +349,7 @@ def reduced_system(panels: Panels, image: Image):
     return out, rhs[rows], base_factor[:n_base, :m].copy()
 
 
+@threads.blas_single
 def factorise(panels: Panels, image: Image) -> System:
     """Factorise the real bodies' system with their images and solve the two unit freestreams.
 
