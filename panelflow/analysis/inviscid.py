@@ -18,6 +18,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from panelflow import threads
 from panelflow.geometry import check
 from panelflow.errors import InputError
 from panelflow.geometry.panelling import panel_outline
@@ -227,6 +228,7 @@ def _coarse_system(panellings) -> System:
     return factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]))
 
 
+@threads.blas_single
 def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
             error_estimate: bool = True, chord_line=None) -> Analysis:
     """Solve the flow around one or more bodies at any number of angles of attack.
