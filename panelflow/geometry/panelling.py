@@ -104,31 +104,32 @@ class _Spline:
             raise GeometryError("spline through the outline points cannot be fitted "
                                 "(repeated points?)")
         self.m = m
+        # per interval, the cubic in u = t - t_i: y = c0 + u (c1 + u (c2 + u c3)), evaluated
+        # from gathers of its coefficients (the second-derivative form needed more work)
+        hh = h[:, None]
+        self._coef = (y[:-1], dy - hh * (2.0 * m[:-1] + m[1:]) / 6.0, 0.5 * m[:-1],
+                      (m[1:] - m[:-1]) / (6.0 * hh))
 
-    def _where(self, tq: np.ndarray):
-        t, h = self.t, self.h
-        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(h) - 1)
-        a = ((t[i + 1] - tq) / h[i])[:, None]
-        return i, h[i][:, None], a, 1.0 - a
+    def _where(self, tq: np.ndarray, first: int):
+        t = self.t
+        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(self.h) - 1)
+        return ((tq - t[i])[:, None],) + tuple(c[i] for c in self._coef[first:])
 
     def __call__(self, tq: np.ndarray, nu: int = 0) -> np.ndarray:
         """Value (nu = 0), first (1) or second (2) derivative at parameters ``tq``."""
-        y, m = self.y, self.m
-        i, hi, a, b = self._where(tq)
         if nu == 0:
-            return a * y[i] + b * y[i + 1] + ((a**3 - a) * m[i] + (b**3 - b) * m[i + 1]) * hi**2 / 6
+            u, c0, c1, c2, c3 = self._where(tq, 0)
+            return c0 + u * (c1 + u * (c2 + u * c3))
+        u, c1, c2, c3 = self._where(tq, 1)
         if nu == 1:
-            return ((y[i + 1] - y[i]) / hi - (3 * a * a - 1) / 6 * hi * m[i]
-                    + (3 * b * b - 1) / 6 * hi * m[i + 1])
-        return a * m[i] + b * m[i + 1]
+            return c1 + u * (2.0 * c2 + 3.0 * u * c3)
+        return 2.0 * c2 + 6.0 * u * c3
 
     def derivatives(self, tq: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """First and second derivatives at ``tq`` (one interval search for both)."""
-        y, m = self.y, self.m
-        i, hi, a, b = self._where(tq)
-        mi, mj = m[i], m[i + 1]
-        d1 = (y[i + 1] - y[i]) / hi - (3 * a * a - 1) / 6 * hi * mi + (3 * b * b - 1) / 6 * hi * mj
-        return d1, a * mi + b * mj
+        u, c1, c2, c3 = self._where(tq, 1)
+        c3u = u * c3
+        return c1 + u * (2.0 * c2 + 3.0 * c3u), 2.0 * c2 + 6.0 * c3u
 
 
 # A closed loop is splined as an open one with this many points wrapped on at each end: the end
@@ -210,8 +211,12 @@ def respline(outline: Outline, n_panels: int, curve=None) -> Panelling:
     # odd width: a centred moving average, so mirror-image outlines get mirror-image nodes
     width = 2 * (int(round(m / n_panels)) // 2) + 1
     kernel = np.ones(width) / width
-    mode = "wrap" if outline.kind == SMOOTH else "edge"
-    density = np.convolve(np.pad(density, width, mode=mode), kernel, mode="same")[width:-width]
+    if outline.kind == SMOOTH:  # np.pad's "wrap" and "edge", written out (np.pad costs more)
+        padded = np.concatenate([density[-width:], density, density[:width]])
+    else:
+        padded = np.concatenate([np.full(width, density[0]), density,
+                                 np.full(width, density[-1])])
+    density = np.convolve(padded, kernel, mode="same")[width:-width]
     if outline.kind != SMOOTH:
         # Node density growing like d^-1/2 towards the trailing edge, as cosine spacing does: the
         # surface speed is not smooth there (it varies like a fractional power of the distance),
