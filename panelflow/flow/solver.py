@@ -258,14 +258,9 @@ def lu_factor(matrix: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     factorisation, its trailing updates on all of panelflow's threads. Either way the result
     does not depend on the thread count.
 
-    Raises
-    ------
-    SolveError
-        Non-finite entries.
+    Non-finite entries are not checked here (a full pass over the matrix): they propagate into
+    the pivots, which :func:`factorise` screens.
     """
-    if not np.all(np.isfinite(matrix)):
-        raise SolveError("panel system cannot be factorised: it has non-finite entries "
-                         "(check the geometry for coincident points)")
     with threads.one_blas_thread():
         if len(matrix) < LU_BLOCKED_FROM:
             # LAPACK directly: scipy.linalg.lu_factor's checks and lookups cost a tenth of a
@@ -304,6 +299,9 @@ def factorise(panels: Panels) -> System:
     # time, and the matrix's norm: it is assembled again, the factorisation overwrote it) is
     # computed only when the pivots look suspicious.
     pivots = np.abs(np.diag(lu[0]))
+    if not np.all(np.isfinite(pivots)):
+        raise SolveError("panel system cannot be factorised: it has non-finite entries "
+                         "(check the geometry for coincident points)")
     ratio = float(pivots.min() / pivots.max()) if pivots.max() > 0 else 0.0
     rcond = ratio
     if ratio < 1e-10:
