@@ -220,26 +220,42 @@ class Chains:
 
     @classmethod
     def of(cls, panels) -> "Chains":
-        """The chains of a :class:`~panelflow.geometry.panels.Panels` (any panel order)."""
+        """The chains of a :class:`~panelflow.geometry.panels.Panels` (any panel order).
+
+        Kept on the panels after the first call (the field asks for them once per block).
+        """
+        cached = getattr(panels, "_chains", None)
+        if cached is not None:
+            return cached
         start = np.asarray(panels.start, np.int64)
         end = np.asarray(panels.end, np.int64)
         p = len(start)
         breaks = np.flatnonzero(start[1:] != end[:-1]) + 1
-        panel_off = np.r_[0, breaks].astype(np.int64)
-        count = np.diff(np.r_[panel_off, p]).astype(np.int64)
-        chain = np.repeat(np.arange(len(count)), count)
-        chain_start = np.arange(p) + chain  # one extra node per earlier chain
-        chain_end = chain_start + 1
-        node_off = (panel_off + np.arange(len(count))).astype(np.int64)
-        idx = np.empty(p + len(count), np.int64)
+        n_chains = len(breaks) + 1
+        panel_off = np.empty(n_chains, np.int64)
+        panel_off[0] = 0
+        panel_off[1:] = breaks
+        count = np.diff(panel_off, append=p)
+        if n_chains == 1:  # one body: no repeats needed
+            chain_start = np.arange(p)
+        else:
+            chain_start = np.arange(p) + np.repeat(np.arange(n_chains), count)
+        chain_end = chain_start + 1  # one extra node per earlier chain
+        node_off = panel_off + np.arange(n_chains)
+        idx = np.empty(p + n_chains, np.int64)
         idx[chain_start] = start
         idx[chain_end] = end
-        xy = np.asarray(panels.nodes, float)[idx]
+        nodes = np.asarray(panels.nodes, float)
         t = np.asarray(panels.tangent)
-        return cls(np.ascontiguousarray(xy[:, 0]), np.ascontiguousarray(xy[:, 1]),
-                   np.ascontiguousarray(t.real), np.ascontiguousarray(t.imag),
-                   np.ascontiguousarray(panels.length, float), panel_off, node_off, count,
-                   start, end, chain_start, chain_end, int(panels.n_nodes))
+        out = cls(nodes[idx, 0], nodes[idx, 1], np.ascontiguousarray(t.real),
+                  np.ascontiguousarray(t.imag), np.ascontiguousarray(panels.length, float),
+                  panel_off, node_off, count, start, end, chain_start, chain_end,
+                  int(panels.n_nodes))
+        try:  # a cache on the (frozen) panels, not part of their value
+            object.__setattr__(panels, "_chains", out)
+        except AttributeError:  # pragma: no cover - an object without a __dict__
+            pass
+        return out
 
     def arrays(self) -> tuple:
         return (self.node_x, self.node_y, self.tx, self.ty, self.length, self.panel_off,
