@@ -200,7 +200,7 @@ def _basis_loads(system: System, zr: complex) -> dict:
     out = {"cp": cp, "force": np.zeros((4, nb), complex), "moment": np.zeros((4, nb)),
            "circulation": np.zeros((2, nb)), "cp_base": np.zeros((4, len(p.base_body)))}
     for k in range(nb):
-        on = p.body == k
+        on = slice(None) if nb == 1 else p.body == k  # one body: no masked copies
         out["force"][:, k] = force[:, on].sum(axis=1)
         out["moment"][:, k] = moment[:, on].sum(axis=1)
         out["circulation"][:, k] = circ[:, on].sum(axis=1)
