@@ -83,8 +83,8 @@ def test_results_on_another_thread_are_the_same(many_cores):
 
 @pytest.mark.parametrize("n", [300, 700])
 def test_blocked_factorisation_is_independent_of_threads(many_cores, monkeypatch, n):
-    """From solver.LU_BLOCKED_FROM unknowns the LU's updates run in column chunks on threads
-    (the threshold lowered here so that the check is quick; the chunks are LU_CHUNK wide)."""
+    """With solver.LU_BLOCKED_FROM set (off by default) the LU's updates run in column chunks
+    on threads (a low threshold here, so that the check is quick; chunks are LU_CHUNK wide)."""
     monkeypatch.setattr(solver, "LU_BLOCKED_FROM", 250)
     assert n > solver.LU_CHUNK
     rng = np.random.default_rng(n)

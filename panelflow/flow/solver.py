@@ -189,14 +189,13 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return matrix, rhs, base_factor
 
 
-# From this size on, the blocked factorisation below, whose trailing updates run on panelflow's
-# threads; below it LAPACK on one thread. Chosen by size only, so the bits of a result never
-# depend on the number of threads (LAPACK's own threading changes them). Measured on the shared
-# 2-core development machine (scripts/bench.py): the blocked LU took 1.2-1.5 times LAPACK's
-# one-thread time on one thread, and its second thread did not pay that back while the other
-# core was busy; so it is kept for systems too large to be common (over 2500 unknowns: a dozen
-# bodies at 200 panels).
-LU_BLOCKED_FROM = 2500
+# From this size on (None: never), the blocked factorisation below, whose trailing updates run
+# on panelflow's threads; otherwise LAPACK on one thread. Chosen by size only, so the bits of a
+# result never depend on the number of threads (LAPACK's own threading changes them). Off by
+# default because it did not pay on the 2-core development machine (scripts/bench.py, 2502
+# unknowns: 670-714 ms on both cores against 338-409 ms for LAPACK on one thread): its updates
+# pass over the trailing matrix once more than LAPACK's, which a second core did not make up.
+LU_BLOCKED_FROM: int | None = None
 # Column width of the blocked factorisation's panels and of its update chunks.
 LU_PANEL = 128
 LU_CHUNK = 256
@@ -254,7 +253,7 @@ def _lu_blocked(a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 def lu_factor(matrix: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     """LU factorisation with partial pivoting, as :func:`scipy.linalg.lu_factor` gives it.
 
-    Small systems: LAPACK on one thread. From ``LU_BLOCKED_FROM`` unknowns: the blocked
+    LAPACK on one thread; from ``LU_BLOCKED_FROM`` unknowns (when set) the blocked
     factorisation, its trailing updates on all of panelflow's threads. Either way the result
     does not depend on the thread count.
 
@@ -262,7 +261,7 @@ def lu_factor(matrix: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
     the pivots, which :func:`factorise` screens.
     """
     with threads.one_blas_thread():
-        if len(matrix) < LU_BLOCKED_FROM:
+        if LU_BLOCKED_FROM is None or len(matrix) < LU_BLOCKED_FROM:
             # LAPACK directly: scipy.linalg.lu_factor's checks and lookups cost a tenth of a
             # 200-panel factorisation
             lu, piv, info = scipy.linalg.lapack.dgetrf(matrix, overwrite_a=True)
