@@ -138,24 +138,28 @@ def test_tied_system_matches_explicit_two_body_system(name, kind):
 @pytest.mark.parametrize("kind", KINDS)
 def test_image_kernels_inside_assembly_equal_the_tied_system(kind, monkeypatch):
     # The hook proposed for solver.assemble: add Image.vortex_psi / Image.source_psi to the
-    # kernels of the real panels. Emulated here by wrapping the influence functions.
+    # kernels of the real panels. Emulated here by wrapping the influence functions (the
+    # assembly takes the node-summed vortex kernel, influence.node_psi).
     bodies = (naca4("2412", n_points=161), circle(0.08, n_points=61).translated(1.35, -0.12))
     pan = Panels.from_panellings([respline(bodies[0].rotated(3.0), 90),
                                   respline(bodies[1], 40)])
     img = boundary(kind, 0.4).image(pitch_point(bodies))
     tied, rhs_tied, base_tied = bnd.reduced_system(pan, img)
-    vortex_psi, source_psi = influence.vortex_psi, influence.source_psi
+    node_psi, source_psi = influence.node_psi, influence.source_psi
 
-    def vortex_with_image(points, z1, tangent, length):
-        a, b = vortex_psi(points, z1, tangent, length)
-        ia, ib = img.vortex_psi(points, pan)
-        return a + ia, b + ib
+    def vortex_with_image(points, panels, out=None):
+        out = node_psi(points, panels, out=out)
+        ia, ib = img.vortex_psi(points, panels)
+        n = len(points)
+        out[:n, panels.start] += ia
+        out[:n, panels.end] += ib
+        return out
 
     def source_with_image(points, z1, tangent, length):
         return source_psi(points, z1, tangent, length) + img.source_psi(points, z1, tangent,
                                                                          length)
 
-    monkeypatch.setattr(influence, "vortex_psi", vortex_with_image)
+    monkeypatch.setattr(influence, "node_psi", vortex_with_image)
     monkeypatch.setattr(influence, "source_psi", source_with_image)
     hooked, rhs, base = solver.assemble(pan)
     # 1e-12: the same kernel values, summed in another order

@@ -24,6 +24,7 @@ import numpy as np
 
 from dataclasses import replace
 
+from panelflow import threads
 from panelflow.errors import InputError
 from panelflow.flow import images
 from panelflow.flow.solver import System, factorise
@@ -262,6 +263,7 @@ def _coarse_system(panellings) -> System:
     return factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]))
 
 
+@threads.blas_single
 def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
             error_estimate: bool = True, chord_line=None) -> Analysis:
     """Solve the flow around one or more bodies at any number of angles of attack.

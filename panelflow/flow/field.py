@@ -23,6 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import shapely
 
+from panelflow import threads
 from panelflow.flow import influence
 from panelflow.errors import InputError
 from panelflow.geometry.outline import BLUNT
@@ -34,37 +35,14 @@ from panelflow.flow.solver import System
 NEAR = 1.0
 # Largest grid: 25 million points take about 1.5 GB for the results of one angle.
 MAX_GRID_POINTS = 25_000_000
+# Points evaluated together: the temporaries of one chunk (about 1 kB per point: masks, nearest
+# surface point, layer blending, unit velocities) stay near 64 MiB whatever the grid size, and a
+# chunk is still thousands of blocks of kernel work.
+FIELD_CHUNK = 65_536
 _TWO_PI = 2.0 * np.pi
 
 
-def _unit_velocity_kernel(points, panels, coef_start, coef_delta):
-    """Induced complex velocity (u - i v) of all panels at ``points`` for given unit strengths.
-
-    ``coef_start`` and ``coef_delta`` (n_panels, k) hold, per panel, conj(t) (-i / 2 pi) times the
-    start-node strength and the end-minus-start strength of each of ``k`` solutions.
-    """
-    x1, y1 = panels.z1.real, panels.z1.imag
-    tx, ty = panels.tangent.real, panels.tangent.imag
-    dx = points.real[:, None] - x1[None, :]
-    dy = points.imag[:, None] - y1[None, :]
-    x = dx * tx + dy * ty
-    y = dy * tx - dx * ty
-    L = panels.length[None, :]
-    xm = x - L
-    y2 = y * y
-    r1 = x * x + y2
-    r2 = xm * xm + y2
-    # Lambda = log(zeta / (zeta - L)), real and imaginary parts (cut on the panel only)
-    lam_r = 0.5 * np.log(np.maximum(r1, 1e-300) / np.maximum(r2, 1e-300))
-    lam_i = np.arctan2(-y * L, x * xm + y2)
-    # j1 = (zeta Lambda - L) / L
-    j_r = (x * lam_r - y * lam_i) / L - 1.0
-    j_i = (x * lam_i + y * lam_r) / L
-    lam = lam_r + 1j * lam_i
-    j1 = j_r + 1j * j_i
-    return lam @ coef_start + j1 @ coef_delta
-
-
+@threads.blas_single
 def induced_velocity(system: System, points, strengths=None) -> np.ndarray:
     """Velocity induced by the panels at ``points`` (no freestream), for nodal strengths.
 
@@ -88,8 +66,7 @@ def induced_velocity(system: System, points, strengths=None) -> np.ndarray:
     coef_start = rot * g[p.start]
     coef_delta = rot * (g[p.end] - g[p.start])
     pts = np.asarray(points, complex).ravel()
-    w = influence.blockwise(lambda blk: _unit_velocity_kernel(blk, p, coef_start, coef_delta),
-                            pts, g.shape[1], dtype=complex, pairs_per_point=p.n_panels)
+    w = influence.node_velocity(pts, p, coef_start, coef_delta)
     if len(p.base_body):
         bz1, bz2 = p.base_z1, p.base_z2
         bl = np.abs(bz2 - bz1)
@@ -173,21 +150,7 @@ def inside_bodies(system: System, points) -> np.ndarray:
 def _nearest_surface(system: System, pts: np.ndarray):
     """Nearest point on the panel polygons: distance, panel index and position along it."""
     p = system.panels
-    best_d = np.full(len(pts), np.inf)
-    best_j = np.zeros(len(pts), int)
-    best_t = np.zeros(len(pts))
-    rows = max(1, influence.BLOCK_PAIRS // max(p.n_panels, 1))
-    for i in range(0, len(pts), rows):
-        blk = pts[i:i + rows]
-        rel = (blk[:, None] - p.z1[None, :]) * np.conj(p.tangent)[None, :]
-        t = np.clip(rel.real / p.length[None, :], 0.0, 1.0)
-        d = np.abs(rel - t * p.length[None, :])
-        j = np.argmin(d, axis=1)
-        r = np.arange(len(blk))
-        best_d[i:i + rows] = d[r, j]
-        best_j[i:i + rows] = j
-        best_t[i:i + rows] = t[r, j]
-    return best_d, best_j, best_t
+    return influence.nearest_panel(pts, p.z1, p.tangent, p.length)
 
 
 def _neighbours(panels):
@@ -246,8 +209,12 @@ def _surface_layer(system: System, q, d, j, t):
     return zs, w_surf, layer, n_out
 
 
+@threads.blas_single
 def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
     """Velocity of the two unit solutions (freestream included) and the inside mask.
+
+    Evaluated in chunks of ``FIELD_CHUNK`` points, so the working memory does not grow with the
+    number of points (only the returned arrays do).
 
     Returns
     -------
@@ -256,6 +223,15 @@ def unit_fields(system: System, points) -> tuple[np.ndarray, np.ndarray]:
     inside : ndarray of bool, shape (n,)
     """
     pts = np.asarray(points, complex).ravel()
+    w = np.empty((len(pts), 2), complex)
+    inside = np.empty(len(pts), bool)
+    for i in range(0, len(pts), FIELD_CHUNK):
+        sl = slice(i, i + FIELD_CHUNK)
+        w[sl], inside[sl] = _unit_fields_chunk(system, pts[sl])
+    return w, inside
+
+
+def _unit_fields_chunk(system: System, pts: np.ndarray):
     inside = inside_bodies(system, pts)
     w = np.full((len(pts), 2), np.nan + 0j)
     out = ~inside
@@ -304,6 +280,9 @@ def system_for(source, alpha_deg: float) -> System:
 def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
     """Velocity and Cp at ``points`` for each angle of attack.
 
+    Evaluated in chunks of ``FIELD_CHUNK`` points written straight into the result arrays: the
+    memory needed beyond the result is bounded (about 64 MiB) at any grid size.
+
     Parameters
     ----------
     source : System or Result
@@ -327,18 +306,25 @@ def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
         raise InputError("near a plane boundary each angle has its own flow: compute the field "
                          "of one angle at a time")
     system = next(iter(systems.values()))
-    w_unit, inside = unit_fields(system, pts)
     a = np.radians(alpha)
-    w = np.cos(a)[:, None] * w_unit[None, :, 0] + np.sin(a)[:, None] * w_unit[None, :, 1]
-    u, v = w.real, -w.imag
-    cp = 1.0 - (u * u + v * v)
+    ca, sa = np.cos(a)[:, None], np.sin(a)[:, None]
+    n = len(pts)
+    u, v, cp = (np.empty((len(alpha), n)) for _ in range(3))
+    inside = np.empty(n, bool)
+    with threads.one_blas_thread():
+        for i in range(0, n, FIELD_CHUNK):
+            sl = slice(i, i + FIELD_CHUNK)
+            w_unit, inside[sl] = _unit_fields_chunk(system, pts[sl])
+            w = ca * w_unit[None, :, 0] + sa * w_unit[None, :, 1]
+            u[:, sl], v[:, sl] = w.real, -w.imag
+            cp[:, sl] = 1.0 - (w.real * w.real + w.imag * w.imag)
     return FlowField(pts, alpha, u, v, cp, inside, tuple(shape) if shape else (len(pts),))
 
 
 def _as_points(points) -> np.ndarray:
     arr = np.asarray(points)
     if np.iscomplexobj(arr):
-        return arr.astype(complex).ravel()
+        return np.asarray(arr, complex).ravel()
     arr = np.asarray(arr, float)
     if arr.ndim != 2 or arr.shape[1] != 2:
         raise InputError(f"points must be complex or of shape (n, 2), got shape {arr.shape}")
@@ -368,8 +354,8 @@ def grid_points(window, resolution) -> tuple[np.ndarray, tuple]:
         raise InputError(f"resolution {nx},{ny}: {nx * ny:.3g} points is more than the "
                          f"{MAX_GRID_POINTS:.0e} a grid may have (evaluate several windows)")
     xs, ys = np.linspace(x0, x1, nx), np.linspace(y0, y1, ny)
-    gx, gy = np.meshgrid(xs, ys)
-    return (gx + 1j * gy).ravel(), (ny, nx)
+    # one complex array, no meshgrid copies: row by row with x fastest
+    return (xs[None, :] + 1j * ys[:, None]).ravel(), (ny, nx)
 
 
 def default_window(outlines, margin: float = 0.5) -> tuple[float, float, float, float]:

@@ -43,6 +43,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import scipy.linalg
 
+from panelflow import threads
 from panelflow.errors import GeometryError, InputError, SolveError
 from panelflow.flow import influence
 from panelflow.flow.solver import System, assemble
@@ -372,6 +373,7 @@ def reduced_system(panels: Panels, image: Image):
     return out, rhs[rows], base_factor[:n_base, :m].copy()
 
 
+@threads.blas_single
 def factorise(panels: Panels, image: Image) -> System:
     """Factorise the real bodies' system with their images and solve the two unit freestreams.
 

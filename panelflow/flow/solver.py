@@ -28,6 +28,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import scipy.linalg
 
+from panelflow import threads
 from panelflow.flow import influence
 from panelflow.errors import SolveError
 from panelflow.geometry.outline import SMOOTH
@@ -147,19 +148,10 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     owner = np.concatenate(owner)
     n_psi = n_single + n_pair  # rows of streamline conditions; the rest follow them
 
-    def node_psi(block):
-        # per-panel coefficients summed onto the nodes; start (and end) indices are unique
-        # within the panel list, so fancy-index += is safe
-        a, b = influence.vortex_psi(block, panels.z1, panels.tangent, panels.length)
-        out = np.zeros((len(block), m))
-        out[:, panels.start] += a
-        out[:, panels.end] += b
-        return out
-
     # The point rows are written straight into the matrix (len(pts) <= n rows); the second
     # point of each pair is averaged into the first, and its row then reused.
     matrix = np.zeros((n, n))
-    influence.blockwise(node_psi, pts, m, out=matrix)
+    influence.node_psi(pts, panels, out=matrix)
     base_factor = _base_factor(panels)
     if len(base_factor):
         bz1, bz2 = panels.base_z1, panels.base_z2
@@ -197,6 +189,98 @@ def assemble(panels: Panels) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return matrix, rhs, base_factor
 
 
+# From this size on (None: never), the blocked factorisation below, whose trailing updates run
+# on panelflow's threads; otherwise LAPACK on one thread. Chosen by size only, so the bits of a
+# result never depend on the number of threads (LAPACK's own threading changes them). Off by
+# default because it did not pay on the 2-core development machine (scripts/bench.py, 2502
+# unknowns: 670-714 ms on both cores against 338-409 ms for LAPACK on one thread): its updates
+# pass over the trailing matrix once more than LAPACK's, which a second core did not make up.
+LU_BLOCKED_FROM: int | None = None
+# Column width of the blocked factorisation's panels and of its update chunks.
+LU_PANEL = 128
+LU_CHUNK = 256
+
+
+def _lu_blocked(a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Right-looking blocked LU with partial pivoting (the algorithm of LAPACK's dgetrf).
+
+    Each panel of ``LU_PANEL`` columns is factorised by LAPACK on one thread; the update of the
+    trailing matrix is split into fixed chunks of ``LU_CHUNK`` columns, each one BLAS call on one
+    thread, run on panelflow's threads. The partition depends on the size only, so the result is
+    bit-identical whatever the number of threads.
+
+    Returns ``(lu, piv)`` in the form of :func:`scipy.linalg.lu_factor`.
+    """
+    from scipy.linalg import blas, lapack
+
+    a = np.array(a, order="F")
+    n = a.shape[0]
+    piv = np.empty(n, dtype=np.int32)
+    for k in range(0, n, LU_PANEL):
+        b = min(LU_PANEL, n - k)
+        panel, ipiv, info = lapack.dgetrf(a[k:, k:k + b])
+        if info < 0:  # pragma: no cover - an argument error would be a bug here
+            raise SolveError(f"internal: dgetrf argument {-info}")
+        a[k:, k:k + b] = panel
+        piv[k:k + b] = ipiv[:b] + k
+        # the panel's row interchanges, applied to the columns left and right of it (column
+        # blocks of a Fortran-ordered array are contiguous: LAPACK swaps them in place)
+        for cols in (slice(0, k), slice(k + b, n)):
+            block = a[:, cols]
+            if block.shape[1]:
+                out = lapack.dlaswp(block, piv, overwrite_a=1, k1=k, k2=k + b - 1)
+                if not np.shares_memory(out, a):  # pragma: no cover - f2py copied after all
+                    a[:, cols] = out
+        if k + b >= n:
+            break
+        a[k:k + b, k + b:] = blas.dtrsm(1.0, a[k:k + b, k:k + b], a[k:k + b, k + b:], lower=1,
+                                        diag=1)
+        lower = np.asfortranarray(a[k + b:, k:k + b])
+        starts = list(range(k + b, n, LU_CHUNK))
+
+        def update(i, lower=lower, starts=starts, top=k + b):
+            c0 = starts[i]
+            c1 = min(n, c0 + LU_CHUNK)
+            # the product in Fortran order, like the block it updates: one streaming pass
+            prod = np.empty((n - top, c1 - c0), order="F")
+            np.matmul(lower, a[top - b:top, c0:c1], out=prod)
+            a[top:, c0:c1] -= prod
+
+        threads.run_blocks(update, len(starts))
+    return a, piv
+
+
+def lu_factor(matrix: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """LU factorisation with partial pivoting, as :func:`scipy.linalg.lu_factor` gives it.
+
+    LAPACK on one thread; from ``LU_BLOCKED_FROM`` unknowns (when set) the blocked
+    factorisation, its trailing updates on all of panelflow's threads. Either way the result
+    does not depend on the thread count.
+
+    Non-finite entries are not checked here (a full pass over the matrix): they propagate into
+    the pivots, which :func:`factorise` screens.
+    """
+    with threads.one_blas_thread():
+        if LU_BLOCKED_FROM is None or len(matrix) < LU_BLOCKED_FROM:
+            # LAPACK directly: scipy.linalg.lu_factor's checks and lookups cost a tenth of a
+            # 200-panel factorisation
+            lu, piv, info = scipy.linalg.lapack.dgetrf(matrix, overwrite_a=True)
+            if info < 0:  # pragma: no cover - an argument error would be a bug here
+                raise SolveError(f"internal: dgetrf argument {-info}")
+            return lu, piv
+        return _lu_blocked(matrix)
+
+
+def lu_solve(lu: tuple, rhs: np.ndarray) -> np.ndarray:
+    """Solve with a factorisation from :func:`lu_factor` (LAPACK on one thread)."""
+    with threads.one_blas_thread():
+        x, info = scipy.linalg.lapack.dgetrs(lu[0], lu[1], rhs)
+    if info < 0:  # pragma: no cover - an argument error would be a bug here
+        raise SolveError(f"internal: dgetrs argument {-info}")
+    return x
+
+
+@threads.blas_single
 def factorise(panels: Panels) -> System:
     """Assemble, LU-factorise once and compute the two unit solutions.
 
@@ -207,22 +291,26 @@ def factorise(panels: Panels) -> System:
     """
     matrix, rhs, base_factor = assemble(panels)
     try:
-        anorm = np.linalg.norm(matrix, 1)
-        lu = scipy.linalg.lu_factor(matrix, overwrite_a=True, check_finite=True)
+        lu = lu_factor(matrix)
     except (ValueError, np.linalg.LinAlgError) as exc:
         raise SolveError(f"panel system cannot be factorised: {exc}") from None
     # Cheap screen on the pivots; the condition estimate (a few percent of the factorisation
-    # time) is computed only when the pivots look suspicious.
+    # time, and the matrix's norm: it is assembled again, the factorisation overwrote it) is
+    # computed only when the pivots look suspicious.
     pivots = np.abs(np.diag(lu[0]))
+    if not np.all(np.isfinite(pivots)):
+        raise SolveError("panel system cannot be factorised: it has non-finite entries "
+                         "(check the geometry for coincident points)")
     ratio = float(pivots.min() / pivots.max()) if pivots.max() > 0 else 0.0
     rcond = ratio
     if ratio < 1e-10:
+        anorm = np.linalg.norm(assemble(panels)[0], 1)
         rcond = float(scipy.linalg.lapack.dgecon(lu[0], anorm, norm="1")[0])
     if not np.isfinite(rcond) or rcond < 1e-14:
         raise SolveError(
             f"panel system is singular (reciprocal condition {rcond:.1e}): check for bodies that "
             "touch, duplicated points or panels far shorter than their neighbours")
-    unit = scipy.linalg.lu_solve(lu, rhs)
+    unit = lu_solve(lu, rhs)
     if not np.all(np.isfinite(unit)):
         raise SolveError("panel system gave non-finite strengths: check the geometry")
     return System(panels, unit, base_factor, rcond)

@@ -15,6 +15,8 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from panelflow import threads
+
 from panelflow.geometry.outline import SMOOTH
 from panelflow.flow.solver import System
 
@@ -164,6 +166,7 @@ def unit_coefficients(basis: dict, c: float):
     return (-2.0 * basis["circulation"].sum(axis=1) / c, -basis["moment"].sum(axis=1) / c**2)
 
 
+@threads.blas_single
 def coefficients(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> Coefficients:
     """Total lift, pressure drag and moment coefficients at the given angles (see ``evaluate``)."""
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
@@ -206,7 +209,7 @@ def _basis_loads(system: System, zr: complex) -> dict:
     out = {"cp": cp, "force": np.zeros((4, nb), complex), "moment": np.zeros((4, nb)),
            "circulation": np.zeros((2, nb)), "cp_base": np.zeros((4, len(p.base_body)))}
     for k in range(nb):
-        on = p.body == k
+        on = slice(None) if nb == 1 else p.body == k  # one body: no masked copies
         out["force"][:, k] = force[:, on].sum(axis=1)
         out["moment"][:, k] = moment[:, on].sum(axis=1)
         out["circulation"][:, k] = circ[:, on].sum(axis=1)
@@ -224,6 +227,7 @@ def _basis_loads(system: System, zr: complex) -> dict:
     return out
 
 
+@threads.blas_single
 def evaluate(system: System, alpha_deg, chord_line: ChordLine, reference_point) -> SurfaceSolution:
     """Surface Cp, forces and moments at the given angles.
 

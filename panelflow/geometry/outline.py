@@ -276,8 +276,12 @@ class Outline:
     @property
     def leading_edge(self) -> np.ndarray:
         """The point of the outline farthest from the trailing edge."""
-        d = np.hypot(*(self.points - self.trailing_edge.point).T)
-        return self.points[int(np.argmax(d))].copy()
+        index = self.__dict__.get("_leading_edge_index")
+        if index is None:  # found once (an analysis asks a few times per body)
+            d = np.hypot(*(self.points - self.trailing_edge.point).T)
+            index = int(np.argmax(d))
+            self.__dict__["_leading_edge_index"] = index
+        return self.points[index].copy()
 
     @property
     def chord(self) -> float:

@@ -8,12 +8,13 @@ Two ways:
 * :func:`given_points` keeps the points exactly as given.
 
 Both return a :class:`Panelling`: the nodes of one body in the outline's convention. The spline
-curve is kept so that a coarser panelling of the *same* curve can be made for the error estimate.
+curve (its fit and its fine samples of curvature and arc length) is kept so that a coarser
+panelling of the *same* curve can be made for the error estimate without fitting it again.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import scipy.linalg
@@ -53,6 +54,7 @@ class Panelling:
     outline: Outline
     nodes: np.ndarray
     method: str
+    curve: object = field(default=None, repr=False, compare=False)
 
     def __post_init__(self):
         self.nodes.setflags(write=False)
@@ -65,7 +67,7 @@ class Panelling:
         """The same body with about half the panels (for the discretisation error estimate)."""
         n = max(MIN_PANELS, self.n_panels // 2)
         if self.method == "spline":
-            return respline(self.outline, n)
+            return respline(self.outline, n, curve=self.curve)
         idx = np.unique(np.r_[np.arange(0, len(self.nodes) - 1, 2), len(self.nodes) - 1])
         return Panelling(self.outline, self.nodes[idx].copy(), self.method)
 
@@ -92,21 +94,42 @@ class _Spline:
         ab[2, 0], ab[1, 1], ab[0, 2] = h[1], -(h[0] + h[1]), h[0]
         ab[4, n - 2], ab[3, n - 1], ab[2, n] = h[n - 1], -(h[n - 2] + h[n - 1]), h[n - 2]
         self.t, self.y, self.h = t, y, h
-        self.m = scipy.linalg.solve_banded((2, 2), ab, rhs)
+        # LAPACK's banded solver directly (scipy.linalg.solve_banded's checks cost as much);
+        # dgbsv wants two more rows of band storage for the fill-in of the pivoting
+        lub = np.zeros((7, n + 1))
+        lub[2:] = ab
+        _, _, m, info = scipy.linalg.lapack.dgbsv(2, 2, lub, rhs, overwrite_ab=True,
+                                                  overwrite_b=True)
+        if info != 0:
+            raise GeometryError("spline through the outline points cannot be fitted "
+                                "(repeated points?)")
+        self.m = m
+        # per interval, the cubic in u = t - t_i: y = c0 + u (c1 + u (c2 + u c3)), evaluated
+        # from gathers of its coefficients (the second-derivative form needed more work)
+        hh = h[:, None]
+        self._coef = (y[:-1], dy - hh * (2.0 * m[:-1] + m[1:]) / 6.0, 0.5 * m[:-1],
+                      (m[1:] - m[:-1]) / (6.0 * hh))
+
+    def _where(self, tq: np.ndarray, first: int):
+        t = self.t
+        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(self.h) - 1)
+        return ((tq - t[i])[:, None],) + tuple(c[i] for c in self._coef[first:])
 
     def __call__(self, tq: np.ndarray, nu: int = 0) -> np.ndarray:
         """Value (nu = 0), first (1) or second (2) derivative at parameters ``tq``."""
-        t, y, h, m = self.t, self.y, self.h, self.m
-        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(h) - 1)
-        hi = h[i][:, None]
-        a = ((t[i + 1] - tq) / h[i])[:, None]
-        b = 1.0 - a
         if nu == 0:
-            return a * y[i] + b * y[i + 1] + ((a**3 - a) * m[i] + (b**3 - b) * m[i + 1]) * hi**2 / 6
+            u, c0, c1, c2, c3 = self._where(tq, 0)
+            return c0 + u * (c1 + u * (c2 + u * c3))
+        u, c1, c2, c3 = self._where(tq, 1)
         if nu == 1:
-            return ((y[i + 1] - y[i]) / hi - (3 * a * a - 1) / 6 * hi * m[i]
-                    + (3 * b * b - 1) / 6 * hi * m[i + 1])
-        return a * m[i] + b * m[i + 1]
+            return c1 + u * (2.0 * c2 + 3.0 * u * c3)
+        return 2.0 * c2 + 6.0 * u * c3
+
+    def derivatives(self, tq: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """First and second derivatives at ``tq`` (one interval search for both)."""
+        u, c1, c2, c3 = self._where(tq, 1)
+        c3u = u * c3
+        return c1 + u * (2.0 * c2 + 3.0 * c3u), 2.0 * c2 + 6.0 * c3u
 
 
 # A closed loop is splined as an open one with this many points wrapped on at each end: the end
@@ -127,7 +150,39 @@ def _spline(outline: Outline):
     return _Spline(tt, yy), period
 
 
-def respline(outline: Outline, n_panels: int) -> Panelling:
+@dataclass(frozen=True)
+class _Curve:
+    """A spline fit of one outline with its fine samples: parameter, arc length, curvature."""
+
+    spline: _Spline
+    t: np.ndarray
+    s: np.ndarray
+    kappa: np.ndarray
+
+    @property
+    def samples(self) -> int:
+        return len(self.t) - 1
+
+
+def _samples(n_panels: int) -> int:
+    return max(2000, _SAMPLES_PER_PANEL * n_panels)  # fine samples for curvature and arc length
+
+
+def _fit(outline: Outline, n_panels: int) -> _Curve:
+    spl, t_end = _spline(outline)
+    m = _samples(n_panels)
+    t = np.linspace(0.0, t_end, m + 1)
+    d1, d2 = spl.derivatives(t)
+    speed = np.hypot(d1[:, 0], d1[:, 1])
+    kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
+    # arc length along the fine parameter grid (trapezoid)
+    s = np.empty(m + 1)
+    s[0] = 0.0
+    np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t), out=s[1:])
+    return _Curve(spl, t, s, kappa)
+
+
+def respline(outline: Outline, n_panels: int, curve=None) -> Panelling:
     """Re-panel an outline with ``n_panels`` panels on a smooth spline through its points.
 
     Parameters
@@ -135,6 +190,10 @@ def respline(outline: Outline, n_panels: int) -> Panelling:
     outline : Outline
     n_panels : int
         Number of surface panels (the base of a blunt trailing edge is extra).
+    curve : optional
+        The ``curve`` of an earlier panelling of the same outline (:attr:`Panelling.curve`):
+        its spline fit and fine samples are reused when they are at least as fine as
+        ``n_panels`` needs (the half-panel solve of the error estimate).
 
     Returns
     -------
@@ -142,36 +201,37 @@ def respline(outline: Outline, n_panels: int) -> Panelling:
     """
     if n_panels < MIN_PANELS:
         raise GeometryError(f"{outline.label}: at least {MIN_PANELS} panels needed, got {n_panels}")
-    spl, t_end = _spline(outline)
-    m = max(2000, _SAMPLES_PER_PANEL * n_panels)  # fine samples for curvature and arc length
-    t = np.linspace(0.0, t_end, m + 1)
-    d1 = spl(t, 1)
-    d2 = spl(t, 2)
-    speed = np.hypot(d1[:, 0], d1[:, 1])
-    kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
-    # arc length along the fine parameter grid (trapezoid)
-    s = np.r_[0.0, np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t))]
+    if not isinstance(curve, _Curve) or curve.samples < _samples(n_panels):
+        curve = _fit(outline, n_panels)
+    t, s, kappa = curve.t, curve.s, curve.kappa
+    m = curve.samples
     chord = outline.chord
     density = 1.0 + _CURVATURE_WEIGHT * (kappa * chord) ** _CURVATURE_POWER
     # Smooth the curvature term over about one mean panel so spacing changes gradually.
     # odd width: a centred moving average, so mirror-image outlines get mirror-image nodes
     width = 2 * (int(round(m / n_panels)) // 2) + 1
     kernel = np.ones(width) / width
-    mode = "wrap" if outline.kind == SMOOTH else "edge"
-    density = np.convolve(np.pad(density, width, mode=mode), kernel, mode="same")[width:-width]
+    if outline.kind == SMOOTH:  # np.pad's "wrap" and "edge", written out (np.pad costs more)
+        padded = np.concatenate([density[-width:], density, density[:width]])
+    else:
+        padded = np.concatenate([np.full(width, density[0]), density,
+                                 np.full(width, density[-1])])
+    density = np.convolve(padded, kernel, mode="same")[width:-width]
     if outline.kind != SMOOTH:
         # Node density growing like d^-1/2 towards the trailing edge, as cosine spacing does: the
         # surface speed is not smooth there (it varies like a fractional power of the distance),
         # and panels shrinking like 1/n^2 at the edge keep the error of that end region small.
         d_te = np.minimum(s, s[-1] - s) / chord + (_TE_CUTOFF / n_panels) ** 2
         density += _TE_WEIGHT * np.maximum(np.sqrt(_TE_WIDTH / d_te) - 1.0, 0.0)
-    cum = np.r_[0.0, np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s))]
+    cum = np.empty(m + 1)
+    cum[0] = 0.0
+    np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s), out=cum[1:])
     targets = np.linspace(0.0, cum[-1], n_panels + 1)
     t_nodes = np.interp(targets, cum, t)
-    nodes = spl(t_nodes)
+    nodes = curve.spline(t_nodes)
     nodes[0] = outline.points[0]
     nodes[-1] = outline.points[-1]
-    return Panelling(outline, nodes, "spline")
+    return Panelling(outline, nodes, "spline", curve)
 
 
 def given_points(outline: Outline) -> Panelling:

@@ -50,6 +50,7 @@ import math
 import operator
 import os
 import re
+import shutil
 import tempfile
 import xml.etree.ElementTree as ET
 from collections.abc import Callable
@@ -61,6 +62,7 @@ import numpy as np
 from panelflow.version import __version__
 from panelflow.errors import InputError, OutputError
 from panelflow.geometry.readers import _read_text
+from panelflow.files import atomic_write
 from panelflow.output.writers import CAUTION, atomic_write_text, check_outputs
 
 __all__ = [
@@ -77,6 +79,9 @@ FIELD_COLUMNS = ("x", "y", "u", "v", "cp", "inside")
 
 # Cell data "body" of the field cells; the line cells of outlines[k] carry k.
 NO_BODY = -1
+# Rows (points) formatted at a time by the streaming writers: the text of one chunk is a few MiB,
+# so writing a field needs little memory beyond the field itself.
+WRITE_CHUNK = 65_536
 
 
 def register_field_writer(ext: str):
@@ -246,24 +251,32 @@ def _write_vtu(field, outlines, k: int, path: Path, overwrite: bool) -> Path:
     mesh = meshio.Mesh(parts.points, [(t, c) for t, c, _ in blocks],
                        point_data=parts.point_data,
                        cell_data={"body": [b for _, _, b in blocks]})
+    del parts, blocks
     folder = path.parent if str(path.parent) else Path(".")
     scratch = None
     try:
         fd, scratch = tempfile.mkstemp(dir=folder, prefix=f".{path.name}.", suffix=".vtu")
         os.close(fd)
         meshio.write(scratch, mesh, file_format="vtu")
-        text = Path(scratch).read_text(encoding="utf-8")
+        del mesh
+
+        def copy_with_comment(fh):
+            # a comment may stand before the root element (after any XML declaration); the rest
+            # of the scratch file is copied in pieces, never held whole in memory
+            with open(scratch, encoding="utf-8") as src:
+                first = src.read(4096)
+                head = first.find("?>") + 2 if first.startswith("<?xml") else 0
+                fh.write(first[:head] + ("\n" if head else "")
+                         + _xml_comment(_header_lines(field, k)) + first[head:].lstrip("\n"))
+                shutil.copyfileobj(src, fh, 1 << 20)
+
+        return atomic_write(path, copy_with_comment, overwrite)
     except (OSError, meshio.WriteError) as exc:
         detail = getattr(exc, "strerror", None) or exc
         raise OutputError(f"{path}: cannot write ({detail})") from None
     finally:
         if scratch is not None and os.path.exists(scratch):
             os.unlink(scratch)
-    # a comment may stand before the root element (after any XML declaration)
-    head = text.find("?>") + 2 if text.startswith("<?xml") else 0
-    text = text[:head] + ("\n" if head else "") + _xml_comment(_header_lines(field, k)) + \
-        text[head:].lstrip("\n")
-    return atomic_write_text(path, text, overwrite)
 
 
 _XDMF_TYPES = {"vertex": ("Polyvertex", 1), "quad": ("Quadrilateral", 5), "line": ("Polyline", 2)}
@@ -327,16 +340,23 @@ def _write_xdmf(field, outlines, k: int, path: Path, overwrite: bool) -> Path:
 
 @register_field_writer(".csv")
 def _write_csv(field, outlines, k: int, path: Path, overwrite: bool) -> Path:
-    """One row per point; NaN is written as ``nan``, which Python and numpy read back."""
-    buf = io.StringIO()
-    for line in _header_lines(field, k):
-        buf.write(f"# {line}\n")
-    csv.writer(buf, lineterminator="\n").writerow(FIELD_COLUMNS)
-    table = np.column_stack([field.x, field.y, field.u[k], field.v[k], field.cp[k],
-                             field.inside.astype(float)])
-    # 15 significant digits: read-back values agree to ~1e-15 relative
-    np.savetxt(buf, table, fmt=["%.15g"] * 5 + ["%d"], delimiter=",")
-    return atomic_write_text(path, buf.getvalue(), overwrite)
+    """One row per point; NaN is written as ``nan``, which Python and numpy read back.
+
+    Written in chunks of ``WRITE_CHUNK`` rows straight into the temporary file, so the memory
+    needed does not grow with the number of points.
+    """
+    def write(fh):
+        for line in _header_lines(field, k):
+            fh.write(f"# {line}\n")
+        csv.writer(fh, lineterminator="\n").writerow(FIELD_COLUMNS)
+        for i in range(0, len(field.points), WRITE_CHUNK):
+            sl = slice(i, i + WRITE_CHUNK)
+            table = np.column_stack([field.x[sl], field.y[sl], field.u[k, sl], field.v[k, sl],
+                                     field.cp[k, sl], field.inside[sl].astype(float)])
+            # 15 significant digits: read-back values agree to ~1e-15 relative
+            np.savetxt(fh, table, fmt=["%.15g"] * 5 + ["%d"], delimiter=",")
+
+    return atomic_write(path, write, overwrite)
 
 
 # ---------------------------------------------------------------------------------- points in

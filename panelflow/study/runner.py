@@ -40,6 +40,8 @@ import numpy as np
 
 from dataclasses import replace
 
+from panelflow import threads
+
 from panelflow.analysis.problem import Flap, OperatingPoint, Problem
 from panelflow.analysis.solve import solve
 from panelflow.errors import IncompleteRunError, InputError, OutputError, PanelflowError
@@ -325,8 +327,13 @@ def run_task(task: SectionTask):
     """
     from panelflow.output.tables import polar
 
+    # A task on a thread of its own (a Dask worker's, an executor's) runs on that thread only:
+    # that executor already shares the cores out. BLAS on one thread everywhere gives the same
+    # bits in this process, in a worker process and on a Dask worker.
+    own_thread = threading.current_thread() is threading.main_thread()
     try:
-        return polar(solve_task(task), task.label)
+        with threads.one_blas_thread(), threads.limited(threads.cap() if own_thread else 1):
+            return polar(solve_task(task), task.label)
     except PanelflowError as exc:
         text = str(exc)
         prefix = f"section {task.label!r}"
@@ -545,7 +552,8 @@ def make_executor(workers: int | None = None, scheduler: str | None = None,
         raise InputError(f"--workers {workers}: give a whole number of at least 1")
     if workers == 1:
         return None
-    return cf.ProcessPoolExecutor(int(workers), initializer=_one_blas_thread)
+    share = max(1, threads.cap() // int(workers))
+    return cf.ProcessPoolExecutor(int(workers), initializer=_worker_threads, initargs=(share,))
 
 
 @contextlib.contextmanager
@@ -580,13 +588,17 @@ def _abandon(ex) -> None:
 _LIMITS = []  # keeps the worker's thread limit alive
 
 
-def _one_blas_thread() -> None:
-    """Worker-process start: one BLAS thread per process, since the processes share the cores.
+def _worker_threads(share: int = 1) -> None:
+    """Worker-process start: one BLAS thread, and panelflow's threads capped at this process's
+    share of the cores (the processes share them; more threads would only wait for each other).
 
     OpenBLAS waits for work by spinning, so two processes with two BLAS threads each on two cores
-    ran a 2-worker study 4 times slower than one process (measured, scripts/bench.py); Dask's
-    worker processes get the same limit from its OPENBLAS_NUM_THREADS=1 default.
+    ran a 2-worker study 4 times slower than one process (measured, scripts/bench.py). The cap
+    goes into the environment, where :func:`panelflow.threads.cap` reads it, so it holds for
+    everything the worker runs; results do not depend on it (see :mod:`panelflow.threads`).
     """
+    user = threads.user_cap()
+    os.environ[threads.ENV_VARIABLE] = str(share if user is None else min(user, share))
     try:
         from threadpoolctl import threadpool_limits
     except ImportError:  # pragma: no cover - a dependency; without it only speed suffers
