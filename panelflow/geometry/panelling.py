@@ -16,9 +16,9 @@ from __future__ import annotations
 from dataclasses import dataclass
 
 import numpy as np
-import scipy.linalg
 
 from panelflow.errors import GeometryError
+from panelflow.geometry.curve import parametric_spline
 from panelflow.geometry.outline import SMOOTH, Outline
 
 MIN_PANELS = 8
@@ -70,61 +70,9 @@ class Panelling:
         return Panelling(self.outline, self.nodes[idx].copy(), self.method)
 
 
-class _Spline:
-    """Cubic interpolating spline with not-a-knot ends, for values of shape (n, d).
-
-    Written out (second-derivative form, banded solve) rather than taken from
-    scipy.interpolate, whose import alone costs about half a second of start-up.
-    """
-
-    def __init__(self, t: np.ndarray, y: np.ndarray):
-        n = len(t) - 1
-        h = np.diff(t)
-        dy = np.diff(y, axis=0) / h[:, None]
-        ab = np.zeros((5, n + 1))  # bands for (l, u) = (2, 2): ab[2 + i - j, j] = a[i, j]
-        rhs = np.zeros((n + 1, y.shape[1]))
-        i = np.arange(1, n)
-        ab[2 + 1, i - 1] = h[:-1]  # a[i, i-1]
-        ab[2, i] = 2.0 * (h[:-1] + h[1:])
-        ab[2 - 1, i + 1] = h[1:]  # a[i, i+1]
-        rhs[1:n] = 6.0 * (dy[1:] - dy[:-1])
-        # not-a-knot: third derivative continuous at the second and the last-but-one point
-        ab[2, 0], ab[1, 1], ab[0, 2] = h[1], -(h[0] + h[1]), h[0]
-        ab[4, n - 2], ab[3, n - 1], ab[2, n] = h[n - 1], -(h[n - 2] + h[n - 1]), h[n - 2]
-        self.t, self.y, self.h = t, y, h
-        self.m = scipy.linalg.solve_banded((2, 2), ab, rhs)
-
-    def __call__(self, tq: np.ndarray, nu: int = 0) -> np.ndarray:
-        """Value (nu = 0), first (1) or second (2) derivative at parameters ``tq``."""
-        t, y, h, m = self.t, self.y, self.h, self.m
-        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(h) - 1)
-        hi = h[i][:, None]
-        a = ((t[i + 1] - tq) / h[i])[:, None]
-        b = 1.0 - a
-        if nu == 0:
-            return a * y[i] + b * y[i + 1] + ((a**3 - a) * m[i] + (b**3 - b) * m[i + 1]) * hi**2 / 6
-        if nu == 1:
-            return ((y[i + 1] - y[i]) / hi - (3 * a * a - 1) / 6 * hi * m[i]
-                    + (3 * b * b - 1) / 6 * hi * m[i + 1])
-        return a * m[i] + b * m[i + 1]
-
-
-# A closed loop is splined as an open one with this many points wrapped on at each end: the end
-# conditions' influence decays by about a factor 3.7 per point, so 24 points leave < 1e-13.
-_WRAP = 24
-
-
 def _spline(outline: Outline):
     """Parametric cubic spline through the outline, parameter = cumulative chord length."""
-    pts = np.asarray(outline.points)
-    t = np.r_[0.0, np.cumsum(np.hypot(*np.diff(pts, axis=0).T))]
-    if outline.kind != SMOOTH:
-        return _Spline(t, pts), t[-1]
-    k = min(_WRAP, len(pts) - 2)
-    period = t[-1]
-    tt = np.r_[t[-k - 1:-1] - period, t, t[1:k + 1] + period]
-    yy = np.vstack([pts[-k - 1:-1], pts, pts[1:k + 1]])
-    return _Spline(tt, yy), period
+    return parametric_spline(outline.points, outline.kind == SMOOTH)
 
 
 def respline(outline: Outline, n_panels: int) -> Panelling:
