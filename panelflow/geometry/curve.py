@@ -139,10 +139,13 @@ def _farthest_on(spl: CubicSpline, lo: float, hi: float, tk: float, origin: np.n
         else:
             hi = x
         df = float(np.dot(d1, d1) + np.dot(r, d2))
-        nxt = x - f / df if df < 0.0 else np.inf
-        if not lo < nxt < hi:
+        step = -f / df if df < 0.0 else np.inf
+        if abs(step) <= 16.0 * tiny:  # converged (Newton is quadratic near the root)
+            return min(max(x + step, lo), hi)
+        nxt = x + step
+        if not lo <= nxt <= hi:
             nxt = 0.5 * (lo + hi)
-        if abs(nxt - x) <= tiny or hi - lo <= tiny:
+        if hi - lo <= tiny:
             return nxt
         x = nxt
     return x
