@@ -91,11 +91,38 @@ def solve_table(analysis) -> str:
                      "accuracy check")
     lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
     lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
-                 "+/-: discretisation error estimate")
+                 "+/-: error estimate (panels and input points)")
+    for note in getattr(analysis, "notes", ()):
+        lines.append("warning: " + note)
     for note in model_notes(analysis):
         lines.append("note: " + note)
     lines.append("caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _resolution_lines(rep) -> list[str]:
+    """How well the points define the shape, in the outline's units and in % of chord."""
+    if not rep.panels:  # not measured (the outline is unusable)
+        return []
+    c = rep.chord
+
+    def pct(v):
+        return f"{100 * v / c:.2g} % of chord"
+
+    if rep.scatter_is_noise:
+        cause = (f"the coordinates are rounded to {rep.rounding:g}" if rep.rounding is not None
+                 else "random, as digitising noise is")
+    else:
+        cause = "the curve's own bending between the points, not noise"
+    return [
+        f"  spacing          up to {rep.largest_spacing:.2g} ({pct(rep.largest_spacing)}); "
+        f"{rep.nose_spacing:.2g} at the nose, whose radius is about {rep.nose_radius:.2g}; "
+        f"turns up to {rep.largest_turn_deg:.0f} deg from point to point",
+        f"  scatter          {rep.scatter:.2g} ({pct(rep.scatter)}) about a smooth curve "
+        f"through the neighbours: {cause}",
+        f"  panels           checked on the curve through the points at {rep.panels} and "
+        f"{max(8, rep.panels // 2)} panels",
+    ]
 
 
 def check_table(reports, overlap_messages) -> str:
@@ -115,9 +142,13 @@ def check_table(reports, overlap_messages) -> str:
                      f"{rep.chord_angle_deg:.3f} deg (nose-up positive)")
         lines.append(f"  thickness        {_num(100 * rep.max_thickness, '.2f')} % of chord; "
                      f"area {rep.area:.6g}")
+        lines += _resolution_lines(rep)
         lines.append("  status           " + ("ok" if rep.ok else "; ".join(rep.problems)))
+        lines += [f"  warning          {w}" for w in rep.warnings]
     for msg in overlap_messages:
         lines.append("problem: " + msg)
+    lines.append("lengths in the outline's own units; spacing, scatter and nose radius measured "
+                 "on the input points")
     return "\n".join(lines) + "\n"
 
 
