@@ -9,7 +9,8 @@ from the difference (Richardson extrapolation with a safety factor, Roache's gri
 index): ``error = F * |f_n - f_n/2| / (r^p - 1)`` with ``r`` the panel-count ratio, ``p = 2`` the
 order of the method (measured in tests/test_convergence.py) and ``F = 3``, Roache's factor for a
 two-grid study (P. J. Roache, Verification and Validation in Computational Science and
-Engineering, 1998), floored at round-off level.
+Engineering, 1998), floored at round-off level. :func:`panelflow.analysis.accuracy.supplement`
+adds the excess of a third panel count's estimate and the error due to the input points.
 """
 
 from __future__ import annotations
@@ -18,11 +19,13 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from panelflow.analysis.accuracy import ErrorTerms, centre_of_pressure, supplement
 from panelflow.geometry import check
 from panelflow.errors import InputError
 from panelflow.geometry.panelling import panel_outline
 from panelflow.geometry.panels import Panels
-from panelflow.flow.solver import System, factorise
+from panelflow.geometry.quality import checked_panellings
+from panelflow.flow.solver import factorise
 from panelflow.flow.surface import ChordLine, Coefficients, SurfaceSolution, coefficients, evaluate
 
 DEFAULT_PANELS = 200
@@ -100,14 +103,24 @@ class Analysis:
         Results at the requested panel count (these are the reported numbers).
     coarse : Coefficients or None
         Coefficients at about half the panels (for the error estimate); None when switched off.
+    extra_error : ErrorTerms or None
+        What is added to the two-panel-count estimate: a third panel count's excess and the
+        share due to the input points (see :mod:`panelflow.analysis.accuracy`).
+    notes : tuple of str
+        Plain sentences on what limits the result (see :func:`accuracy.result_notes`).
+    x_center_of_pressure : ndarray
+        Centre of pressure per angle, NaN where the normal force cannot place it.
     """
 
     outlines: tuple
     panellings: tuple
     fine: SurfaceSolution
     coarse: Coefficients | None = field(repr=False)
+    extra_error: ErrorTerms | None = field(default=None, repr=False)
+    notes: tuple = ()
     cl_error_estimate: np.ndarray = field(init=False, repr=False)
     cm_error_estimate: np.ndarray = field(init=False, repr=False)
+    x_center_of_pressure: np.ndarray = field(init=False, repr=False)
 
     def __post_init__(self):
         if self.coarse is None:
@@ -120,8 +133,12 @@ class Analysis:
             cl_err = _error(np.stack([ca, sa], axis=1), f.unit_cl, c.unit_cl, ratio)
             cm_w = np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1)
             cm_err = _error(cm_w, f.unit_cm, c.unit_cm, ratio)
+        if self.extra_error is not None:  # third panel count, input points (accuracy.py)
+            cl_err, cm_err = cl_err + self.extra_error.cl, cm_err + self.extra_error.cm
         object.__setattr__(self, "cl_error_estimate", cl_err)
         object.__setattr__(self, "cm_error_estimate", cm_err)
+        x_cp, _ = centre_of_pressure(self.fine, np.nan_to_num(cl_err), np.nan_to_num(cm_err))
+        object.__setattr__(self, "x_center_of_pressure", x_cp)
 
     @property
     def alpha_deg(self) -> np.ndarray:
@@ -176,7 +193,8 @@ class Analysis:
                 x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes]))
         return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
                            float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),
-                           float(cl_err), float(cm_err), float(f.x_cp[i]), tuple(bodies))
+                           float(cl_err), float(cm_err), float(self.x_center_of_pressure[i]),
+                           tuple(bodies))
 
     def __iter__(self):
         return (self[i] for i in range(len(self)))
@@ -219,12 +237,8 @@ def build(outlines, n_panels: int | None = DEFAULT_PANELS):
     """
     outlines = tuple(outlines)
     check.validate(outlines)
-    panellings = tuple(panel_outline(o, n_panels) for o in outlines)
+    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels))
     return panellings, factorise(Panels.from_panellings(panellings))
-
-
-def _coarse_system(panellings) -> System:
-    return factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]))
 
 
 def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
@@ -257,9 +271,14 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
     panellings, system = build(outlines, n_panels)
     fine = evaluate(system, alpha, chord, ref)
-    coarse = (coefficients(_coarse_system(panellings), alpha, chord, ref) if error_estimate
-              else None)
-    return Analysis(outlines, panellings, fine, coarse)
+    if not error_estimate:
+        return Analysis(outlines, panellings, fine, None)
+    halves = [pl.coarsened() for pl in panellings]
+    coarse = coefficients(factorise(Panels.from_panellings(halves)), alpha, chord, ref)
+    two = Analysis(outlines, panellings, fine, coarse)
+    extra, notes = supplement(outlines, panellings, halves, fine, coarse, two.cl_error_estimate,
+                              two.cm_error_estimate, chord_line, reference_point)
+    return Analysis(outlines, panellings, fine, coarse, extra, notes)
 
 
 def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,
