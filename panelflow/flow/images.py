@@ -47,6 +47,7 @@ from panelflow.analysis.inviscid import (DEFAULT_PANELS, ORDER, ROUND_OFF, SAFET
 from panelflow.errors import GeometryError, InputError, SolveError
 from panelflow.geometry.outline import SMOOTH, Outline
 from panelflow.geometry.panelling import panel_outline
+from panelflow.geometry.quality import checked_panellings
 from panelflow.geometry.panels import Panels
 from panelflow.flow.solver import System, assemble
 from panelflow.flow.surface import evaluate
@@ -535,7 +536,7 @@ def _solve_angle(outlines, alpha, image, pitch, ref_given, n_panels):
     pitched = _pitch(outlines, alpha, pitch)
     clearance = _clearance(pitched, image, alpha)
     check.validate(pitched)
-    panellings = tuple(panel_outline(o, n_panels) for o in pitched)
+    panellings = checked_panellings(pitched, lambda o: panel_outline(o, n_panels))
     chord, quarter = default_reference(pitched)
     ref = quarter if ref_given is None else _rotate_point(ref_given, alpha, pitch)
     system = factorise(Panels.from_panellings(panellings), image)
