@@ -36,7 +36,7 @@ _NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": F
                     "--static-pressure": False, "--window": False, "--mach": False,
                     "--ground": False, "--free-surface": False, "--depth": False, "--flap": False,
                     "--resolution": False, "--flap-gap": False, "--flap-radius": False,
-                    "--node-tolerance": False}
+                    "--node-tolerance": False, "--smooth-within": False}
 
 
 def _join_numeric_values(argv):
@@ -89,7 +89,8 @@ def _cmd_solve(ns) -> int:
     from panelflow.output.report import solve_table
     from panelflow.output.writers import analysis_json, check_outputs, write_result
 
-    bodies, chord_line = _flapped(ns, load_bodies(ns.outlines))
+    bodies, smoothing = _smoothed(ns, load_bodies(ns.outlines))
+    bodies, chord_line = _flapped(ns, bodies)
     n_panels = None if ns.keep_points else ns.panels
     boundary = _boundary(ns)
     if ns.cl is not None and boundary is not None:
@@ -119,6 +120,8 @@ def _cmd_solve(ns) -> int:
         from panelflow.output.figures import surface_cp_figure
 
         surface_cp_figure(result, ns.plot, float(result.alpha_deg[0]), overwrite=ns.force)
+    for line in smoothing:  # what the smoothing moved, where the user will see it
+        print(f"smoothing: {line}", file=sys.stderr if ns.json else sys.stdout)
     if ns.json:
         sys.stdout.write(analysis_json(result))
     else:
@@ -129,6 +132,16 @@ def _cmd_solve(ns) -> int:
     for path in [*(ns.output or []), *([ns.plot] if ns.plot else [])]:
         print(f"wrote {path}", file=sys.stderr)
     return 0
+
+
+def _smoothed(ns, bodies):
+    """Bodies smoothed within ``--smooth-within`` (outline units), and a sentence for each."""
+    if getattr(ns, "smooth_within", None) is None:
+        return bodies, []
+    from panelflow.geometry.quality import smoothed
+
+    fits = [smoothed(o, ns.smooth_within) for o in bodies]
+    return [f.outline for f in fits], [f.describe() for f in fits]
 
 
 def _boundary(ns):
@@ -431,6 +444,10 @@ def build_parser() -> argparse.ArgumentParser:
                    help="also write the results (.json: everything; .csv: one row per angle)")
     s.add_argument("--plot", metavar="FIGURE",
                    help="surface Cp figure (.png, .svg or .pdf) at the first angle")
+    s.add_argument("--smooth-within", type=float, metavar="DISTANCE",
+                   help="first fit a smoothing curve to each outline that moves no point by "
+                   "more than DISTANCE (outline units; leading and trailing edges kept) and "
+                   "report the largest move: for digitised or rounded coordinates")
     s.add_argument("--mach", type=float, metavar="M",
                    help="compressibility-corrected coefficients and the critical Mach number")
     s.add_argument("--mach-rule", default="karman-tsien",
