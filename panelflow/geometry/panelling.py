@@ -36,8 +36,8 @@ _SAMPLES_PER_PANEL = 8
 # Largest length ratio of neighbouring panels the node density is graded to (the trailing-edge
 # spacing has about 2.1 by design, kept as it is).
 _GRADE = 2.5
-# Largest share of a panel one density sample step may hold.
-_MAX_STEP = 0.25
+# Density samples per panel, at least (see _resolved).
+_SAMPLES_PER_STEP = 4
 
 
 @dataclass(frozen=True)
@@ -96,32 +96,27 @@ def _resolved(t, s, curvature_density, n_panels, chord, trailing_edge):
     """The node density on samples fine enough that no sample step holds much of a panel.
 
     The curvature part is known on the even samples ``t``; the trailing-edge part is evaluated
-    exactly wherever a sample lands. Steps that would hold more than a quarter of a panel (at a
-    trailing edge, or at a nose much smaller than a panel) are split until none does; without
-    that, nodes fell in runs of equal spacing inside one step, with jumps of 4 to 12 between the
-    runs.
+    exactly wherever a sample lands. The samples are placed at equal steps of ``4 u + m s/L``
+    (``u`` the panel count reached, ``m`` the even samples, ``L`` the length), so each panel gets
+    at least about four and the even spacing is kept elsewhere; without that the first
+    trailing-edge panels and a thin section's nose fell inside one step, in runs of equal
+    spacing with jumps of 4 to 12 between the runs. Every step here is a continuous function of
+    the points, so nearly equal outlines get nearly equal nodes.
 
     Returns
     -------
-    (t, s, density) on the refined samples.
+    (t, s, density) on the new samples.
     """
-    tq, sq = t, s
-    for _ in range(12):
-        dens = np.interp(tq, t, curvature_density)
-        if trailing_edge:
-            dens = dens + _te_density(sq, chord, n_panels)
-        cum = np.r_[0.0, np.cumsum(0.5 * (dens[1:] + dens[:-1]) * np.diff(sq))]
-        du = np.diff(cum) * (n_panels / cum[-1])
-        split = np.ceil(du / _MAX_STEP).astype(int)
-        if split.max() <= 1:
-            break
-        split = np.maximum(split, 1)
-        start = np.repeat(np.arange(len(split)), split)
-        first = np.repeat(np.cumsum(split) - split, split)
-        frac = (np.arange(len(start)) - first) / np.repeat(split, split)
-        tq = np.r_[tq[start] + frac * (tq[start + 1] - tq[start]), tq[-1]]
-        sq = np.interp(tq, t, s)
-    return tq, sq, dens
+    def total(sq, base):
+        return base + (_te_density(sq, chord, n_panels) if trailing_edge else 0.0)
+
+    dens = total(s, curvature_density)
+    cum = np.r_[0.0, np.cumsum(0.5 * (dens[1:] + dens[:-1]) * np.diff(s))]
+    m = len(t) - 1
+    w = _SAMPLES_PER_STEP * n_panels * cum / cum[-1] + m * s / s[-1]
+    tq = np.interp(np.linspace(0.0, w[-1], _SAMPLES_PER_STEP * n_panels + m + 1), w, t)
+    sq = np.interp(tq, t, s)
+    return tq, sq, total(sq, np.interp(tq, t, curvature_density))
 
 
 def _graded(density: np.ndarray, s: np.ndarray, n_panels: int, closed: bool) -> np.ndarray:
@@ -135,7 +130,8 @@ def _graded(density: np.ndarray, s: np.ndarray, n_panels: int, closed: bool) -> 
     """
     f = np.log(density)
     slope = np.log(_GRADE)
-    for _ in range(3):  # u moves as the density rises; three passes settle it
+    for _ in range(3):  # u moves as the density rises; three passes settle it (a fixed count,
+        # so that the nodes stay a continuous function of the points)
         cum = np.r_[0.0, np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s))]
         u = cum * (n_panels / cum[-1])
         if closed:  # the loop continues past its ends: envelope over three periods
@@ -148,8 +144,6 @@ def _graded(density: np.ndarray, s: np.ndarray, n_panels: int, closed: bool) -> 
         g = np.maximum(up, down)
         if closed:
             g = g[len(u):2 * len(u)]
-        if np.allclose(g, f, rtol=0.0, atol=1e-12):
-            break
         f = g
         density = np.exp(f)
     return density
