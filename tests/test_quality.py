@@ -170,16 +170,16 @@ def test_coarse_clean_points_are_not_called_noise(n, spacing):
 
 
 def test_nose_resolution_is_reported():
-    # NACA 0001 drawn with 201 points: the nose radius is 1.1 t^2 = 1.1e-4 chord by the NACA
-    # Report 460 formula (from memory), but the curve through points 3.4e-4 apart there reads
-    # 1.0e-3, and the outline turns 94 deg from one point to the next. With the built-in 801
-    # points: 7.4e-5 apart, radius read 1.6e-4, turns of 30 deg (measured).
+    # NACA 0001 drawn with 201 points turns 94 deg from one point to the next at the nose, which
+    # lies between points 3.4e-4 apart; with the built-in 801 points 30 deg, 6.0e-5 apart, and
+    # the curve's nose radius reads 1.0e-4 against 1.1 t^2 = 1.1e-4 of the NACA Report 460
+    # formula (from memory).
     coarse = quality.inspect_input(parse_spec("naca0001", n_points=201))
     fine = quality.inspect_input(parse_spec("naca0001"))
     assert coarse.largest_turn_deg > 60.0
     assert fine.largest_turn_deg < 0.5 * coarse.largest_turn_deg
-    assert fine.nose_radius == pytest.approx(1.1019 * 0.01**2, rel=0.5)
-    assert coarse.nose_radius > 5 * fine.nose_radius
+    assert fine.nose_spacing < 0.25 * coarse.nose_spacing
+    assert fine.nose_radius == pytest.approx(1.1019 * 0.01**2, rel=0.2)
 
 
 # ------------------------------------------------------------------------- panelled geometry

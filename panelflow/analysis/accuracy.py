@@ -51,7 +51,7 @@ import numpy as np
 from panelflow.errors import GeometryError
 from panelflow.geometry.panelling import MIN_PANELS, panelled_like, respline
 from panelflow.geometry.panels import Panels
-from panelflow.geometry.quality import scatter, smoothed, thinned
+from panelflow.geometry.quality import inspect_input, scatter, smoothed, thinned
 from panelflow.flow.solver import factorise
 from panelflow.flow.surface import ChordLine, coefficients
 
@@ -127,7 +127,7 @@ def _angle_weights(alpha_deg):
 
 
 def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord_line=None,
-                           reference_point=None) -> InputTerm:
+                           reference_point=None, scatters=None) -> InputTerm:
     """Error estimate due to the input's own resolution (see the module docstring).
 
     Parameters
@@ -148,6 +148,9 @@ def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord
     reference_point : (x, y), optional
         The moment reference point the user fixed; by default the quarter chord of the chord
         line in use.
+    scatters : sequence of float, optional
+        Random scatter of each body's points (0 where there is none), when already measured
+        (:func:`panelflow.geometry.quality.scatter`).
 
     Returns
     -------
@@ -158,7 +161,9 @@ def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord
     if any(pl.method != "spline" for pl in coarse_panellings):
         return zero
     d_cl, d_cm, count = np.zeros(2), np.zeros(4), 0
-    for bodies, parameter, weight in _variants(outlines):
+    if scatters is None:
+        scatters = [scatter(o) for o in outlines]
+    for bodies, parameter, weight in _variants(outlines, scatters):
         try:
             panels = Panels.from_panellings([panelled_like(o, pl, parameter)
                                              for o, pl in zip(bodies, coarse_panellings)])
@@ -182,8 +187,8 @@ def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord
                       INPUT_FACTOR * d_cl, INPUT_FACTOR * d_cm, count)
 
 
-def _variants(outlines):
-    """The other curves the input supports: (bodies, spline parameter) pairs."""
+def _variants(outlines, scatters):
+    """The other curves the input supports: (bodies, spline parameter, weight) triples."""
     for parity in (0, 1):
         try:
             yield [thinned(o, parity) for o in outlines], "chord", 1.0
@@ -191,8 +196,7 @@ def _variants(outlines):
             continue
     yield list(outlines), "centripetal", 1.0
     smooth, moved = [], False
-    for o in outlines:
-        s = scatter(o)
+    for o, s in zip(outlines, scatters):
         if s > NOISE_FLOOR * o.chord:  # random scatter: the curve through the points
             try:                       # wiggles by about that much
                 o = smoothed(o, SMOOTHING_SPAN * s).outline
@@ -276,7 +280,8 @@ def _resolution_reasons(q, name: str) -> list[str]:
     return [f"{name}: {r}" for r in out]
 
 
-def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, cp_reasons):
+def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, cp_reasons,
+                 qualities=None):
     """Plain sentences on what limits a result, for the ``notes`` of an analysis.
 
     Parameters
@@ -289,13 +294,15 @@ def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, 
         The input term (None when the error estimate was switched off).
     cp_reasons : list of (index, sentence)
         From :func:`centre_of_pressure`.
+    qualities : sequence of InputQuality, optional
+        :func:`panelflow.geometry.quality.inspect_input` of each body, when already measured.
 
     Returns
     -------
     tuple of str
     """
     from panelflow.geometry.outline import SMOOTH
-    from panelflow.geometry.quality import inspect_input, panel_problems
+    from panelflow.geometry.quality import panel_problems
 
     notes = []
     smooth = [o for o in outlines if o.kind == SMOOTH]
@@ -303,7 +310,8 @@ def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, 
         notes.append(f"{o.name}: no trailing edge, so in this model the body carries no "
                      "circulation and no lift at any angle (a real rounded-tail body separates "
                      "and does lift); its pressures and moment are those of attached flow")
-    qualities = [inspect_input(o) for o in outlines]
+    if qualities is None:
+        qualities = [inspect_input(o) for o in outlines]
     for o, q in zip(outlines, qualities):
         notes += q.sentences(o.name)
     notes += list(panel_problems(panellings).notes)
@@ -372,9 +380,12 @@ def supplement(outlines, panellings, halves, fine, coarse, cl_panels, cm_panels,
     zero = np.zeros(len(alpha))
     p_cl, p_cm = ((zero, zero) if third is None else
                   (np.maximum(third[0] - cl_panels, 0.0), np.maximum(third[1] - cm_panels, 0.0)))
-    inputs = input_resolution_error(outlines, halves, alpha, coarse, chord_line, reference_point)
+    qualities = [inspect_input(o) for o in outlines]
+    scatters = [q.scatter if q.scatter_is_noise else 0.0 for q in qualities]
+    inputs = input_resolution_error(outlines, halves, alpha, coarse, chord_line, reference_point,
+                                    scatters)
     terms = ErrorTerms(p_cl + inputs.cl, p_cm + inputs.cm, p_cl, p_cm, inputs)
     _, cp_reasons = centre_of_pressure(fine, cl_panels + terms.cl, cm_panels + terms.cm)
     notes = result_notes(outlines, panellings, alpha, cl_panels + p_cl, cm_panels + p_cm,
-                         inputs, cp_reasons)
+                         inputs, cp_reasons, qualities)
     return terms, notes

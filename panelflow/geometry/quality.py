@@ -171,7 +171,10 @@ def local_residuals(points: np.ndarray, closed: bool, excluded=(), degree: int =
     scale[scale == 0] = 1.0
     u = tau / scale
     vander = u[:, :, None] ** np.arange(degree + 1)  # (n, k, degree + 1)
-    pinv = np.linalg.pinv(vander)  # (n, degree + 1, k)
+    vt = np.swapaxes(vander, 1, 2)
+    # least-squares weights (V^T V)^-1 V^T by the normal equations: u lies in [-1, 1], so they
+    # are well conditioned for these small degrees, and far cheaper than an SVD per point
+    pinv = np.linalg.solve(vt @ vander, vt)  # (n, degree + 1, k)
     w0, w1 = pinv[:, 0, :], pinv[:, 1, :]  # value and slope at the point
     q = pts[nb % n]  # (n, k, 2)
     pred = np.einsum("nk,nkd->nd", w0, q)
@@ -200,7 +203,7 @@ def _near(i: int, n: int, closed: bool, reach: int) -> np.ndarray:
     return idx % n if closed else idx[(idx >= 0) & (idx < n)]
 
 
-def doubtful_points(points: np.ndarray, closed: bool, size: float):
+def doubtful_points(points: np.ndarray, closed: bool, size: float, with_residuals=False):
     """Points that lie far off the curve through their neighbours, worst first.
 
     A point is doubtful when, with it left out of its neighbours' fits, its distance from the
@@ -213,16 +216,20 @@ def doubtful_points(points: np.ndarray, closed: bool, size: float):
     Returns
     -------
     list of (index, deviation, ratio)
-        Deviation in outline units (signed, positive outwards on a counter-clockwise loop is
-        not implied), ratio to the larger typical distance.
+        Deviation in outline units (signed; positive towards the inside of the loop), ratio to
+        the larger typical distance. With ``with_residuals``, also the first pass's
+        ``(residual, gain)`` of :func:`local_residuals` (nothing excluded), for reuse.
     """
     pts = np.asarray(points, float)
     n = len(pts)
     found: list = []
     floor = 1e-12 * size  # round-off of the coordinates
+    first = None
     for _ in range(MAX_SUSPECTS):
         excluded = [f[0] for f in found]
         r, g = local_residuals(pts, closed, excluded)
+        if first is None:
+            first = (r, g)
         if not np.all(np.isfinite(r[np.setdiff1d(np.arange(n), excluded)])):
             break
         z = np.abs(r) / g
@@ -242,7 +249,7 @@ def doubtful_points(points: np.ndarray, closed: bool, size: float):
         if best is None or best[2] <= SUSPECT_RATIO or abs(best[1]) <= SUSPECT_FLOOR * size:
             break
         found.append(best)
-    return found
+    return (found, first) if with_residuals else found
 
 
 # --------------------------------------------------------------------------- thinned input
@@ -573,18 +580,22 @@ def body_thickness(outline: Outline) -> float:
     c = outline.chord
     e = (te - le) / c
     poly = np.asarray(outline.polygon, float) - le
-    xi = poly @ e  # along the chord
-    eta = poly @ np.array([-e[1], e[0]])  # normal to it
-    a_xi, b_xi = xi, np.roll(xi, -1)
-    a_eta, b_eta = eta, np.roll(eta, -1)
-    x = np.linspace(0.0, c, 401)[1:-1, None]
-    span = b_xi - a_xi
-    with np.errstate(divide="ignore", invalid="ignore"):
-        f = (x - a_xi) / span
-    cross = (f >= 0.0) & (f < 1.0) & (span != 0.0)
-    y = a_eta + np.where(cross, f, 0.0) * (b_eta - a_eta)
-    top = np.where(cross, y, -np.inf).max(axis=1)
-    bottom = np.where(cross, y, np.inf).min(axis=1)
+    xi, eta = poly @ e, poly @ np.array([-e[1], e[0]])  # along and normal to the chord
+    a_xi, b_xi, a_eta, b_eta = xi, np.roll(xi, -1), eta, np.roll(eta, -1)
+    x = np.linspace(0.0, c, 401)[1:-1]
+    # the stations each edge spans, as index ranges into the sorted stations
+    k0 = np.searchsorted(x, np.minimum(a_xi, b_xi), side="left")
+    k1 = np.searchsorted(x, np.maximum(a_xi, b_xi), side="left")
+    count = np.where(a_xi != b_xi, k1 - k0, 0)
+    edge = np.repeat(np.arange(len(poly)), count)
+    station = (np.arange(count.sum()) - np.repeat(np.cumsum(count) - count, count)
+               + np.repeat(k0, count))
+    f = (x[station] - a_xi[edge]) / (b_xi[edge] - a_xi[edge])
+    y = a_eta[edge] + f * (b_eta[edge] - a_eta[edge])
+    top = np.full(len(x), -np.inf)
+    bottom = np.full(len(x), np.inf)
+    np.maximum.at(top, station, y)
+    np.minimum.at(bottom, station, y)
     width = np.where(np.isfinite(top) & np.isfinite(bottom), top - bottom, 0.0)
     return float(np.max(width)) / c
 
@@ -602,9 +613,9 @@ def inspect_input(outline: Outline) -> InputQuality:
     """
     pts, closed = _chain(outline)
     chord = outline.chord
-    found = doubtful_points(pts, closed, chord)
+    found, first = doubtful_points(pts, closed, chord, with_residuals=True)
     bad = [f[0] for f in found]
-    r3, g3 = local_residuals(pts, closed, bad, degree=3)
+    r3, g3 = first if not bad else local_residuals(pts, closed, bad, degree=3)
     r5, g5 = local_residuals(pts, closed, bad, degree=5)
     keep = np.setdiff1d(np.arange(len(pts)), bad)
     s3 = _scatter((np.abs(r3) / g3)[keep])
@@ -615,7 +626,9 @@ def inspect_input(outline: Outline) -> InputQuality:
     spl, t_end = curve.parametric_spline(outline.points, closed)
     t = curve.chord_parameter(outline.points)
     le = outline.leading_edge
-    fine = np.linspace(0.0, t_end, max(4000, 20 * len(pts)))
+    # the leading edge lies on the curve within an interval of its nearest input point
+    j = int(np.argmin(np.hypot(*(outline.points - le).T)))
+    fine = np.linspace(t[max(j - 1, 0)], t[min(j + 1, len(t) - 1)], 401)
     k = int(np.argmin(np.hypot(*(spl(fine) - le).T)))
     d1, d2 = spl(fine[k:k + 1], 1)[0], spl(fine[k:k + 1], 2)[0]
     kappa = abs(d1[0] * d2[1] - d1[1] * d2[0]) / max(np.hypot(*d1) ** 3, 1e-300)
