@@ -265,8 +265,8 @@ def _resolution_reasons(q, name: str) -> list[str]:
     """Why an input's own resolution is coarse: scatter, rounding, a coarsely drawn nose."""
     c = q.chord
     out = []
-    if q.scatter_is_noise and q.scatter > 0.0:
-        what = (f"coordinates rounded to {q.rounding:g}" if q.rounding is not None
+    if q.scatter_is_noise and q.scatter > NOISE_FLOOR * c:
+        what = (f"coordinates rounded to {q.rounding:g}" if q.scatter_cause == "rounding"
                 else "digitising noise")
         out.append(f"the points scatter by {q.scatter:.2g} ({100 * q.scatter / c:.2g} % of "
                    f"chord) about a smooth curve ({what})")

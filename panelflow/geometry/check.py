@@ -52,6 +52,8 @@ class OutlineReport:
     scatter_is_noise : bool
         The scatter is random (digitising, rounding) rather than the curve bending between
         coarse points.
+    scatter_cause : str
+        ``"rounding"``, ``"noise"`` or ``"bending"`` (see ``InputQuality.scatter_cause``).
     rounding : float or None
         Decimal step all coordinates are rounded to.
     largest_spacing, nose_spacing, nose_radius : float
@@ -80,6 +82,7 @@ class OutlineReport:
     problems: tuple
     scatter: float = float("nan")
     scatter_is_noise: bool = False
+    scatter_cause: str = ""
     rounding: float | None = None
     largest_spacing: float = float("nan")
     nose_spacing: float = float("nan")
@@ -156,7 +159,8 @@ def inspect(outline: Outline, n_panels: int = 200) -> OutlineReport:
                     break
         except GeometryError as exc:
             problems.append(str(exc).split(": ", 1)[-1])
-        extra = dict(scatter=q.scatter, scatter_is_noise=q.scatter_is_noise, rounding=q.rounding,
+        extra = dict(scatter=q.scatter, scatter_is_noise=q.scatter_is_noise,
+                     scatter_cause=q.scatter_cause, rounding=q.rounding,
                      largest_spacing=q.largest_spacing, nose_spacing=q.nose_spacing,
                      nose_radius=q.nose_radius, largest_turn_deg=q.largest_turn_deg,
                      panels=n_panels, warnings=tuple(dict.fromkeys(warnings)))

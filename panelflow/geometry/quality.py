@@ -540,6 +540,17 @@ class InputQuality:
     thickness: float
     doubtful: tuple
 
+    @property
+    def scatter_cause(self) -> str:
+        """``"rounding"`` (the scatter is what the rounding step gives), ``"noise"`` (more than
+        that: digitising) or ``"bending"`` (not random: the curve between coarse points)."""
+        if not self.scatter_is_noise:
+            return "bending"
+        # rounding to a step spreads +/- step/2 uniformly: standard deviation step/sqrt(12)
+        if self.rounding is not None and self.scatter <= 2.0 * self.rounding / np.sqrt(12.0):
+            return "rounding"
+        return "noise"
+
     def sentences(self, name: str) -> list[str]:
         """Plain sentences on what limits this input (empty when nothing does)."""
         c = self.chord

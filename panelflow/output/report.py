@@ -20,7 +20,9 @@ _CP_MIN_WARN = -3.0
 
 
 def _num(v, fmt):
-    return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-".rjust(int(fmt.split(".")[0] or 0))  # keep the column width
+    return format(v, fmt)
 
 
 def decimals(errors) -> int:
@@ -109,9 +111,11 @@ def _resolution_lines(rep) -> list[str]:
     def pct(v):
         return f"{100 * v / c:.2g} % of chord"
 
-    if rep.scatter_is_noise:
-        cause = (f"the coordinates are rounded to {rep.rounding:g}" if rep.rounding is not None
-                 else "random, as digitising noise is")
+    if rep.scatter_cause == "rounding":
+        cause = f"what rounding the coordinates to {rep.rounding:g} gives"
+    elif rep.scatter_cause == "noise":
+        cause = "random, as digitising noise is" + (
+            f" (more than the rounding to {rep.rounding:g} gives)" if rep.rounding else "")
     else:
         cause = "the curve's own bending between the points, not noise"
     return [
