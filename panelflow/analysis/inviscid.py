@@ -13,7 +13,8 @@ Engineering, 1998), floored at round-off level.
 
 Near a plane boundary (:func:`analyse_near_plane`) each angle has its own system (the images
 move with the angle); the results are joined into the same :class:`Analysis`, in the bodies' own
-frame, with a per-angle error estimate.
+frame, with a per-angle error estimate. :func:`panelflow.analysis.accuracy.supplement`
+adds the excess of a third panel count's estimate and the error due to the input points.
 """
 
 from __future__ import annotations
@@ -25,6 +26,7 @@ import numpy as np
 from dataclasses import replace
 
 from panelflow import threads
+from panelflow.analysis.accuracy import ErrorTerms, centre_of_pressure, supplement
 from panelflow.errors import InputError
 from panelflow.flow import images
 from panelflow.flow.solver import System, factorise
@@ -33,6 +35,7 @@ from panelflow.flow.surface import (ChordLine, Coefficients, SurfaceSolution, co
 from panelflow.geometry import check
 from panelflow.geometry.panelling import panel_outline
 from panelflow.geometry.panels import Panels
+from panelflow.geometry.quality import checked_panellings
 
 DEFAULT_PANELS = 200
 ORDER = 2.0
@@ -114,30 +117,44 @@ class Analysis:
     cl_error_estimate, cm_error_estimate : ndarray, shape (n_alpha,)
         Discretisation error estimates; computed from ``coarse`` on the angle basis unless given
         (per angle, near a plane). NaN without an estimate.
+    extra_error : ErrorTerms or None
+        What is added to the two-panel-count estimate: a third panel count's excess and the
+        share due to the input points (see :mod:`panelflow.analysis.accuracy`).
+    notes : tuple of str
+        Plain sentences on what limits the result (see :func:`accuracy.result_notes`).
+    x_center_of_pressure : ndarray
+        Centre of pressure per angle, NaN where the normal force cannot place it.
     """
 
     outlines: tuple
     panellings: tuple
     fine: SurfaceSolution
     coarse: Coefficients | None = field(repr=False)
+    extra_error: ErrorTerms | None = field(default=None, repr=False)
+    notes: tuple = ()
     cl_error_estimate: np.ndarray | None = field(default=None, repr=False)
     cm_error_estimate: np.ndarray | None = field(default=None, repr=False)
+    x_center_of_pressure: np.ndarray = field(init=False, repr=False)
 
     def __post_init__(self):
-        if self.cl_error_estimate is not None and self.cm_error_estimate is not None:
-            return
-        if self.coarse is None:
-            cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
-        else:
-            f, c = self.fine, self.coarse
-            ratio = f.panels.n_panels / c.n_panels
-            a = np.radians(f.alpha_deg)
-            ca, sa = np.cos(a), np.sin(a)
-            cl_err = _error(np.stack([ca, sa], axis=1), f.unit_cl, c.unit_cl, ratio)
-            cm_w = np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1)
-            cm_err = _error(cm_w, f.unit_cm, c.unit_cm, ratio)
-        object.__setattr__(self, "cl_error_estimate", cl_err)
-        object.__setattr__(self, "cm_error_estimate", cm_err)
+        cl_err, cm_err = self.cl_error_estimate, self.cm_error_estimate
+        if cl_err is None or cm_err is None:  # else given per angle (near a plane)
+            if self.coarse is None:
+                cl_err = cm_err = np.full(len(self.fine.alpha_deg), np.nan)
+            else:
+                f, c = self.fine, self.coarse
+                ratio = f.panels.n_panels / c.n_panels
+                a = np.radians(f.alpha_deg)
+                ca, sa = np.cos(a), np.sin(a)
+                cl_err = _error(np.stack([ca, sa], axis=1), f.unit_cl, c.unit_cl, ratio)
+                cm_w = np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1)
+                cm_err = _error(cm_w, f.unit_cm, c.unit_cm, ratio)
+            if self.extra_error is not None:  # third panel count, input points (accuracy.py)
+                cl_err, cm_err = cl_err + self.extra_error.cl, cm_err + self.extra_error.cm
+        object.__setattr__(self, "cl_error_estimate", np.asarray(cl_err, float))
+        object.__setattr__(self, "cm_error_estimate", np.asarray(cm_err, float))
+        x_cp, _ = centre_of_pressure(self.fine, np.nan_to_num(cl_err), np.nan_to_num(cm_err))
+        object.__setattr__(self, "x_center_of_pressure", x_cp)
 
     @property
     def alpha_deg(self) -> np.ndarray:
@@ -212,7 +229,8 @@ class Analysis:
                 x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes]))
         return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
                            float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),
-                           float(cl_err), float(cm_err), float(f.x_cp[i]), tuple(bodies))
+                           float(cl_err), float(cm_err), float(self.x_center_of_pressure[i]),
+                           tuple(bodies))
 
     def __iter__(self):
         return (self[i] for i in range(len(self)))
@@ -255,12 +273,8 @@ def build(outlines, n_panels: int | None = DEFAULT_PANELS):
     """
     outlines = tuple(outlines)
     check.validate(outlines)
-    panellings = tuple(panel_outline(o, n_panels) for o in outlines)
+    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels))
     return panellings, factorise(Panels.from_panellings(panellings))
-
-
-def _coarse_system(panellings) -> System:
-    return factorise(Panels.from_panellings([pl.coarsened() for pl in panellings]))
 
 
 @threads.blas_single
@@ -294,9 +308,14 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
     panellings, system = build(outlines, n_panels)
     fine = evaluate(system, alpha, chord, ref)
-    coarse = (coefficients(_coarse_system(panellings), alpha, chord, ref) if error_estimate
-              else None)
-    return Analysis(outlines, panellings, fine, coarse)
+    if not error_estimate:
+        return Analysis(outlines, panellings, fine, None)
+    halves = [pl.coarsened() for pl in panellings]
+    coarse = coefficients(factorise(Panels.from_panellings(halves)), alpha, chord, ref)
+    two = Analysis(outlines, panellings, fine, coarse)
+    extra, notes = supplement(outlines, panellings, halves, fine, coarse, two.cl_error_estimate,
+                              two.cm_error_estimate, chord_line, reference_point)
+    return Analysis(outlines, panellings, fine, coarse, extra, notes)
 
 
 def _richardson(fine, coarse, ratio):
@@ -343,7 +362,7 @@ def analyse_near_plane(outlines, alpha_deg, boundary, n_panels: int | None = DEF
     pitch = quarter if pitch_point is None else np.asarray(pitch_point, float)
     gaps = np.array([images.clearance(outlines, boundary.image(pitch, a), a) for a in alpha])
     check.validate(outlines)
-    panellings = tuple(panel_outline(o, n_panels) for o in outlines)
+    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels))
     panels = Panels.from_panellings(panellings)
     sols = [_plane_angle(panels, boundary, pitch, float(a), chord, ref) for a in alpha]
     fine = stack(sols)
@@ -361,7 +380,8 @@ def analyse_near_plane(outlines, alpha_deg, boundary, n_panels: int | None = DEF
                               np.array([s.cl_pressure[0] for s in cs]),
                               np.array([s.cd_pressure[0] for s in cs]), cm_c,
                               np.full(2, np.nan), np.full(4, np.nan))
-    return Analysis(outlines, panellings, fine, coarse, cl_err, cm_err), gaps
+    return Analysis(outlines, panellings, fine, coarse, cl_error_estimate=cl_err,
+                    cm_error_estimate=cm_err), gaps
 
 
 def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,

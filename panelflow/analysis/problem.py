@@ -269,6 +269,10 @@ class Problem:
         Moment reference point; default the quarter chord of the main body's (undeflected)
         chord line.
     flap : Flap or None
+    smoothing : float or None
+        Fit each body with a smoothing curve that moves no input point by more than this
+        distance (outline units; leading and trailing edges kept) before the flap and the
+        panelling: for digitised or noisy tables (:func:`panelflow.geometry.quality.smoothed`).
     label : str
         A name for tables and figures; default the bodies' names joined.
     """
@@ -279,6 +283,7 @@ class Problem:
     error_estimate: bool = True
     reference_point: tuple | None = None
     flap: Flap | None = None
+    smoothing: float | None = None
     label: str = ""
 
     def __post_init__(self):
@@ -310,6 +315,8 @@ class Problem:
             if len(ref) != 2:
                 raise InputError("the reference point needs two coordinates (x, y)")
             object.__setattr__(self, "reference_point", ref)
+        if self.smoothing is not None:
+            object.__setattr__(self, "smoothing", _positive(self.smoothing, "smoothing distance"))
         if self.flap is not None and not isinstance(self.flap, Flap):
             raise InputError(f"flap must be a Flap, got {type(self.flap).__name__}")
         object.__setattr__(self, "error_estimate", bool(self.error_estimate))
@@ -337,6 +344,8 @@ class Problem:
                "reference_point": list(self.reference_point) if self.reference_point else None}
         if self.flap is not None:
             out["flap"] = self.flap.record()
+        if self.smoothing is not None:
+            out["smoothing"] = self.smoothing
         out.update(self.operating.record())
         return out
 

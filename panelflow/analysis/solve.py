@@ -33,12 +33,17 @@ _CL_TOLERANCE = 1e-10
 
 
 def _geometry(problem: Problem):
-    """(bodies, chord line or None, flapped section or None)."""
-    bodies = problem.bodies
+    """(bodies, chord line or None, flapped section or None, smoothing sentences)."""
+    bodies, smoothing = problem.bodies, ()
+    if problem.smoothing is not None:
+        from panelflow.geometry.quality import smoothed
+
+        fits = [smoothed(o, problem.smoothing) for o in bodies]
+        bodies, smoothing = tuple(f.outline for f in fits), tuple(f.describe() for f in fits)
     if problem.flap is None:
-        return bodies, None, None
+        return bodies, None, None, smoothing
     fs = problem.flap.apply(bodies[0])
-    return (*fs.outlines, *bodies[1:]), fs.chord_line, fs
+    return (*fs.outlines, *bodies[1:]), fs.chord_line, fs, smoothing
 
 
 def _near_plane(problem, bodies, alpha, chord_line, error_estimate):
@@ -85,12 +90,12 @@ def model_notes(result: Result) -> tuple:
     """
     notes = []
     names = [o.name for o in result.outlines]
-    smooth = [o.name for o in result.outlines if o.kind == SMOOTH]
-    if smooth:
+    for name in (o.name for o in result.outlines if o.kind == SMOOTH):
         notes.append(
-            f"{', '.join(smooth)} has no trailing edge: in this model a body without one carries "
-            "no circulation, so its lift is zero whatever the angle (a real rounded tail sheds "
-            "vorticity where the flow separates)")
+            f"{name}: no trailing edge, so in this model the body carries no circulation and no "
+            "lift at any angle (a real rounded-tail body separates and does lift); its pressures "
+            "and moment are those of attached flow")
+    notes += list(getattr(result.inviscid, "notes", ()))
     for r in result:
         flags = []
         if abs(r.alpha_deg) > ALPHA_WARN_DEG:
@@ -135,7 +140,7 @@ def solve(problem: Problem) -> Result:
     if not isinstance(problem, Problem):
         raise InputError(f"solve takes a Problem, got {type(problem).__name__}")
     op = problem.operating
-    bodies, chord_line, flapped = _geometry(problem)
+    bodies, chord_line, flapped, smoothing = _geometry(problem)
     alpha = (np.array([_angle_for_lift(problem, bodies, chord_line)]) if op.target_cl is not None
              else np.asarray(op.alpha_deg, float))
     plane = None
@@ -168,4 +173,4 @@ def solve(problem: Problem) -> Result:
         cavitation = assess_in(inviscid, op.depth, op.fluid, speed=op.speed)
     result = Result(problem, inviscid, compressibility, cavitation, plane, flapped)
     return Result(problem, inviscid, compressibility, cavitation, plane, flapped,
-                  model_notes(result))
+                  tuple(f"smoothing: {s}" for s in smoothing) + model_notes(result))

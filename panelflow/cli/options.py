@@ -25,7 +25,7 @@ NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": Fa
                    "--static-pressure": False, "--window": False, "--mach": False,
                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False,
                    "--resolution": False, "--flap-gap": False, "--flap-radius": False,
-                   "--node-tolerance": False}
+                   "--node-tolerance": False, "--smooth-within": False}
 
 
 def join_numeric_values(argv):
@@ -85,6 +85,10 @@ def add_geometry_options(g) -> None:
                    help="make it a separate flap body with this slot gap (fraction of the chord)")
     g.add_argument("--flap-radius", type=float, default=0.01, metavar="R",
                    help="rounding radius at the hinge (fraction of the chord, default 0.01)")
+    g.add_argument("--smooth-within", type=float, metavar="D",
+                   help="first fit each body with a smoothing curve that moves no point by more "
+                   "than D (outline units; leading and trailing edges kept), for digitised or "
+                   "noisy tables")
 
 
 def add_condition_options(g, angles_help: str) -> None:
@@ -160,7 +164,8 @@ def problem_of(ns, bodies, operating: OperatingPoint, label: str = "") -> Proble
     if not ns.keep_points:
         _check_panels(ns.panels)
     return Problem(tuple(bodies), operating, panels=None if ns.keep_points else ns.panels,
-                   reference_point=ref, flap=flap_of(ns), label=label)
+                   reference_point=ref, flap=flap_of(ns), smoothing=ns.smooth_within,
+                   label=label)
 
 
 def checked_operating(ns, output: str, single_angle: bool = False) -> OperatingPoint:

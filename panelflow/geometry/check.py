@@ -1,8 +1,11 @@
 """Geometry check of outlines with shapely: what ``panelflow check`` reports.
 
 An outline is usable when its loop is closed (true by construction of :class:`Outline`), simple
-(no self-intersection), encloses a non-zero area, has enough points, and does not overlap any other
-body of the same analysis.
+(no self-intersection), encloses a non-zero area, has enough points, does not overlap any other
+body of the same analysis, is not thinner than the solver handles, and its panels (on the smooth
+curve through the points, at the solve's default count and at half of it) neither cross nor fold
+back. The report also measures how well the points define the shape (scatter, spacing, the nose,
+doubtful points; see :mod:`panelflow.geometry.quality`).
 """
 
 from __future__ import annotations
@@ -17,7 +20,9 @@ from shapely.geometry import LinearRing, Polygon
 from shapely.validation import explain_validity
 
 from panelflow.errors import GeometryError
+from panelflow.geometry import quality
 from panelflow.geometry.outline import MIN_POINTS, Outline
+from panelflow.geometry.panelling import respline
 
 
 @dataclass(frozen=True)
@@ -42,6 +47,24 @@ class OutlineReport:
         Largest thickness normal to the chord line, as a fraction of the chord.
     problems : tuple of str
         Empty when the outline is usable.
+    scatter : float
+        Typical distance of a point from the smooth curve through its neighbours (outline units).
+    scatter_is_noise : bool
+        The scatter is random (digitising, rounding) rather than the curve bending between
+        coarse points.
+    scatter_cause : str
+        ``"rounding"``, ``"noise"`` or ``"bending"`` (see ``InputQuality.scatter_cause``).
+    rounding : float or None
+        Decimal step all coordinates are rounded to.
+    largest_spacing, nose_spacing, nose_radius : float
+        Longest gap between neighbouring points, the gap at the nose and the nose radius of the
+        curve through the points (outline units).
+    largest_turn_deg : float
+        Largest change of direction from one point to the next.
+    panels : int
+        Panel count the panelled geometry was checked at (and half of it).
+    warnings : tuple of str
+        Doubtful (probably mistyped) points with their input lines, and panel spacing notes.
     """
 
     name: str
@@ -57,6 +80,16 @@ class OutlineReport:
     area: float
     max_thickness: float
     problems: tuple
+    scatter: float = float("nan")
+    scatter_is_noise: bool = False
+    scatter_cause: str = ""
+    rounding: float | None = None
+    largest_spacing: float = float("nan")
+    nose_spacing: float = float("nan")
+    nose_radius: float = float("nan")
+    largest_turn_deg: float = float("nan")
+    panels: int = 0
+    warnings: tuple = ()
 
     @property
     def ok(self) -> bool:
@@ -96,16 +129,45 @@ def _problems(outline: Outline) -> list[str]:
     return problems
 
 
-def inspect(outline: Outline) -> OutlineReport:
-    """Report on one outline; problems are listed rather than raised."""
+def inspect(outline: Outline, n_panels: int = 200) -> OutlineReport:
+    """Report on one outline; problems are listed rather than raised.
+
+    Parameters
+    ----------
+    outline : Outline
+    n_panels : int
+        Panel count at which the panelled geometry is checked (with half of it, as the solve's
+        error estimate uses); the solve's default.
+    """
     problems = _problems(outline)
     te = outline.trailing_edge
     area = abs(outline.area)
     thick = _thickness(outline) if not problems else float("nan")
+    extra = {}
+    if not problems:
+        problems += quality.thin_problems([outline])
+    if not problems:
+        q = quality.inspect_input(outline)
+        warnings = [p.describe(outline.chord) for p in q.doubtful]
+        try:
+            fine = respline(outline, n_panels)
+            for pls in ((fine,), (fine.coarsened(),)):
+                found = quality.panel_problems(pls)
+                problems += [p.split(": ", 1)[-1] for p in found.problems]
+                warnings += [w.split(": ", 1)[-1] for w in found.notes]
+                if found.problems:
+                    break
+        except GeometryError as exc:
+            problems.append(str(exc).split(": ", 1)[-1])
+        extra = dict(scatter=q.scatter, scatter_is_noise=q.scatter_is_noise,
+                     scatter_cause=q.scatter_cause, rounding=q.rounding,
+                     largest_spacing=q.largest_spacing, nose_spacing=q.nose_spacing,
+                     nose_radius=q.nose_radius, largest_turn_deg=q.largest_turn_deg,
+                     panels=n_panels, warnings=tuple(dict.fromkeys(warnings)))
     return OutlineReport(outline.name, outline.source, len(outline.points) - 1, te.kind, te.gap,
                          te.included_angle_deg, tuple(map(float, outline.leading_edge)),
                          tuple(map(float, te.point)), outline.chord, outline.chord_angle_deg,
-                         area, thick, tuple(problems))
+                         area, thick, tuple(problems), **extra)
 
 
 def overlaps(outlines) -> list[str]:

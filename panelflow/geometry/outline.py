@@ -7,7 +7,13 @@ Convention inside panelflow (whatever the order of the input):
   for a sharp trailing edge both are the same point (``points[0] == points[-1]``), for a blunt
   one they differ and the segment from ``points[-1]`` to ``points[0]`` is the base;
 * a smooth body with no trailing edge (circle, rounded fairing) is a closed loop
-  (``points[0] == points[-1]``) that starts at its most downstream point.
+  (``points[0] == points[-1]``) that starts at the point nearest the downstream end of its
+  longest extent.
+
+The leading edge is taken from the smooth curve through the points (see
+:mod:`panelflow.geometry.curve`): the point of that curve farthest from the trailing edge. A smooth
+body's chord is its longest extent (the two points of the curve farthest apart), which turns with
+the body, so a pitched body and the same points read back from a file have the same chord.
 """
 
 from __future__ import annotations
@@ -17,6 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from panelflow.errors import GeometryError
+from panelflow.geometry import curve
 
 SHARP = "sharp"
 BLUNT = "blunt"
@@ -121,6 +128,18 @@ def _turning(poly: np.ndarray) -> np.ndarray:
     return np.arctan2(cross, dot)
 
 
+def _smooth_loop(poly: np.ndarray, order: np.ndarray) -> np.ndarray:
+    """``order`` rolled to start at the downstream end of the longest extent of the points, with
+    that first index repeated at the end (a closed loop)."""
+    loop = poly[order]
+    i, j = curve.extent_samples(np.vstack([loop, loop[:1]]))
+    dx = loop[i, 0] - loop[j, 0]
+    if abs(dx) <= curve.TIE * np.hypot(*(loop[i] - loop[j])):
+        dx = 1.0 if i == 0 else -1.0  # across the stream (turned by 90 deg): keep the start
+    rolled = np.roll(order, -(i if dx > 0 else j))
+    return np.r_[rolled, rolled[:1]]
+
+
 @dataclass(frozen=True)
 class TrailingEdge:
     """Trailing-edge facts of an outline.
@@ -161,13 +180,19 @@ class Outline:
         Trailing-edge kind: ``"sharp"``, ``"blunt"`` or ``"none"``.
     source : str
         Where the outline came from (file path or section spec), for messages.
+    lines : ndarray of int or None
+        Line of the input file each point was read from (one per row of ``points``), so that
+        checks can name the line of a doubtful point; None when the points were not read from a
+        text table.
     """
 
     name: str
     points: np.ndarray
     kind: str
     source: str = ""
+    lines: np.ndarray | None = field(default=None, repr=False, compare=False)
     trailing_edge: TrailingEdge = field(init=False, repr=False, compare=False)
+    _leading_edge: np.ndarray = field(init=False, repr=False, compare=False)
 
     def __post_init__(self):
         pts = _as_points(self.points)
@@ -179,12 +204,21 @@ class Outline:
             raise GeometryError(f"{self.label}: {len(pts)} points; at least {MIN_POINTS} needed")
         if not np.all(np.isfinite(pts)):
             raise GeometryError(f"{self.label}: coordinates must be finite numbers")
-        object.__setattr__(self, "trailing_edge", self._trailing_edge())
+        if self.lines is not None:
+            lines = np.asarray(self.lines, dtype=np.int64)
+            if lines.shape != (len(pts),):
+                raise GeometryError(f"{self.label}: {len(lines)} line numbers for {len(pts)} "
+                                    "points")
+            lines.setflags(write=False)
+            object.__setattr__(self, "lines", lines)
+        le, te_point = self._fitted_ends()
+        object.__setattr__(self, "_leading_edge", le)
+        object.__setattr__(self, "trailing_edge", self._trailing_edge(te_point))
 
     # ------------------------------------------------------------------ construction
     @classmethod
     def from_points(cls, points, name: str = "body", source: str = "",
-                    starts_at_trailing_edge: bool = True) -> "Outline":
+                    starts_at_trailing_edge: bool = True, lines=None) -> "Outline":
         """Normalise any closed loop of points into an :class:`Outline`.
 
         Parameters
@@ -202,6 +236,9 @@ class Outline:
             corner (a table that starts at the leading edge, a polyline from a mesh file), the
             trailing edge is searched for: the most downstream (largest x) sharp corner or blunt
             base, if any.
+        lines : array_like of int, optional
+            Input-file line of each point, kept beside the points through the reordering (see
+            the ``lines`` attribute).
 
         Returns
         -------
@@ -211,16 +248,18 @@ class Outline:
         pts = _as_points(points)
         if not np.all(np.isfinite(pts)):
             raise GeometryError(f"{label}: coordinates must be finite numbers (found NaN or inf)")
+        # index of each kept point in the input, carried through every reordering below
+        idx = np.arange(len(pts))
         size = float(np.max(np.ptp(pts, axis=0))) if len(pts) else 0.0
         tol = 1e-9 * size
         if len(pts):
             keep = np.r_[True, np.hypot(*np.diff(pts, axis=0).T) > tol]
-            poly = pts[keep]
+            poly, idx = pts[keep], idx[keep]
         else:
             poly = pts
         open_ends = len(poly) > 1 and np.hypot(*(poly[-1] - poly[0])) > tol
         if not open_ends:
-            poly = poly[:-1]
+            poly, idx = poly[:-1], idx[:-1]
         if len(poly) < MIN_POINTS or size == 0.0:
             raise GeometryError(f"{label}: {len(poly)} distinct points; at least {MIN_POINTS} needed")
         area = signed_area(poly)
@@ -228,45 +267,63 @@ class Outline:
             raise GeometryError(f"{label}: the outline encloses no area")
         first = 0
         if area < 0:
-            poly = poly[::-1].copy()
+            poly, idx = poly[::-1].copy(), idx[::-1]
             first = len(poly) - 1
         turn = _turning(poly)
         m = len(poly)
+        in_lines = None if lines is None else np.asarray(lines, dtype=np.int64)
+        if in_lines is not None and in_lines.shape != (len(pts),):
+            raise GeometryError(f"{label}: {len(in_lines)} line numbers for {len(pts)} points")
+
+        def make(loop_idx, kind):
+            return cls(name, poly[loop_idx], kind, source,
+                       None if in_lines is None else in_lines[idx[loop_idx]])
+
         feature = None
         if starts_at_trailing_edge:
             feature = _feature_at_start(poly, turn, first, open_ends)
         if feature is None:
             feature = _search_feature(poly, turn, size)
         if feature is None:
-            i = int(np.argmax(poly[:, 0]))
-            loop = np.roll(poly, -i, axis=0)
-            return cls(name, np.vstack([loop, loop[:1]]), SMOOTH, source)
+            return make(_smooth_loop(poly, np.arange(m)), SMOOTH)
         kind, lower, upper = feature
         if kind == SHARP:
-            loop = np.roll(poly, -upper, axis=0)
-            return cls(name, np.vstack([loop, loop[:1]]), SHARP, source)
+            loop = np.roll(np.arange(m), -upper)
+            return make(np.r_[loop, loop[:1]], SHARP)
         # blunt: CCW order ... lower corner -> base (maybe with points on it) -> upper corner ...
         n_keep = (lower - upper) % m + 1
-        loop = np.roll(poly, -upper, axis=0)[:n_keep]
-        return cls(name, loop, BLUNT, source)
+        return make(np.roll(np.arange(m), -upper)[:n_keep], BLUNT)
 
     # ------------------------------------------------------------------ derived facts
     @property
     def label(self) -> str:
         return self.source or self.name
 
-    def _trailing_edge(self) -> TrailingEdge:
+    def _fitted_ends(self) -> tuple[np.ndarray, np.ndarray]:
+        """Leading edge and trailing-edge point on the smooth curve through the points."""
+        pts = self.points
+        closed = self.kind == SMOOTH
+        spline = curve.parametric_spline(pts, closed)
+        if closed:
+            p, q = curve.longest_extent(pts, spline)
+            # the loop starts at the downstream end: the other end is the leading edge
+            near_start = np.hypot(*(p - pts[0])) <= np.hypot(*(q - pts[0]))
+            return (q, p) if near_start else (p, q)
+        te = pts[0] if self.kind == SHARP else 0.5 * (pts[0] + pts[-1])
+        return curve.farthest_point(pts, False, te, spline), te.copy()
+
+    def _trailing_edge(self, point: np.ndarray) -> TrailingEdge:
         pts = self.points
         if self.kind == SMOOTH:
-            return TrailingEdge(SMOOTH, pts[0].copy(), 0.0, 180.0)
+            return TrailingEdge(SMOOTH, point, 0.0, 180.0)
         up = pts[1] - pts[0]  # along the upper surface, away from the trailing edge
         lo = pts[-2] - pts[-1]  # along the lower surface, away from the trailing edge
         cosang = np.dot(up, lo) / (np.linalg.norm(up) * np.linalg.norm(lo))
         angle = float(np.degrees(np.arccos(np.clip(cosang, -1.0, 1.0))))
         if self.kind == SHARP:
-            return TrailingEdge(SHARP, pts[0].copy(), 0.0, angle)
+            return TrailingEdge(SHARP, point, 0.0, angle)
         gap = float(np.hypot(*(pts[0] - pts[-1])))
-        return TrailingEdge(BLUNT, 0.5 * (pts[0] + pts[-1]), gap, angle)
+        return TrailingEdge(BLUNT, point, gap, angle)
 
     @property
     def polygon(self) -> np.ndarray:
@@ -275,13 +332,11 @@ class Outline:
 
     @property
     def leading_edge(self) -> np.ndarray:
-        """The point of the outline farthest from the trailing edge."""
-        index = self.__dict__.get("_leading_edge_index")
-        if index is None:  # found once (an analysis asks a few times per body)
-            d = np.hypot(*(self.points - self.trailing_edge.point).T)
-            index = int(np.argmax(d))
-            self.__dict__["_leading_edge_index"] = index
-        return self.points[index].copy()
+        """The point of the smooth curve through the points farthest from the trailing edge.
+
+        For a body without a trailing edge: the upstream end of its longest extent.
+        """
+        return self._leading_edge.copy()
 
     @property
     def chord(self) -> float:
@@ -305,7 +360,11 @@ class Outline:
 
     # ------------------------------------------------------------------ transforms
     def _mapped(self, pts: np.ndarray) -> "Outline":
-        return Outline(self.name, pts, self.kind, self.source)
+        if self.kind == SMOOTH:  # start again at the downstream end of the turned body
+            order = _smooth_loop(pts[:-1], np.arange(len(pts) - 1))
+            return Outline(self.name, pts[:-1][order], self.kind, self.source,
+                           None if self.lines is None else self.lines[:-1][order])
+        return Outline(self.name, pts, self.kind, self.source, self.lines)
 
     def scaled(self, factor: float, about=(0.0, 0.0)) -> "Outline":
         """Return a copy scaled by ``factor`` about the point ``about``."""
@@ -329,7 +388,7 @@ class Outline:
         return self._mapped(c + (self.points - c) @ rot.T)
 
     def renamed(self, name: str) -> "Outline":
-        return Outline(name, self.points, self.kind, self.source)
+        return Outline(name, self.points, self.kind, self.source, self.lines)
 
     def __repr__(self) -> str:
         te = self.trailing_edge

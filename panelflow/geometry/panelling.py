@@ -8,8 +8,7 @@ Two ways:
 * :func:`given_points` keeps the points exactly as given.
 
 Both return a :class:`Panelling`: the nodes of one body in the outline's convention. The spline
-curve (its fit and its fine samples of curvature and arc length) is kept so that a coarser
-panelling of the *same* curve can be made for the error estimate without fitting it again.
+curve is kept so that a coarser panelling of the *same* curve can be made for the error estimate.
 """
 
 from __future__ import annotations
@@ -17,9 +16,9 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 import numpy as np
-import scipy.linalg
 
 from panelflow.errors import GeometryError
+from panelflow.geometry.curve import PARAMETERS, parametric_spline
 from panelflow.geometry.outline import SMOOTH, Outline
 
 MIN_PANELS = 8
@@ -34,6 +33,11 @@ _TE_WEIGHT = 2.0
 _TE_WIDTH = 0.2
 _TE_CUTOFF = 1.0
 _SAMPLES_PER_PANEL = 8
+# Largest length ratio of neighbouring panels the node density is graded to (the trailing-edge
+# spacing has about 2.1 by design, kept as it is).
+_GRADE = 2.5
+# Density samples per panel, at least (see _resolved).
+_SAMPLES_PER_STEP = 4
 
 
 @dataclass(frozen=True)
@@ -49,11 +53,15 @@ class Panelling:
         (the same point for a sharp trailing edge or a smooth body).
     method : str
         ``"spline"`` or ``"given"``.
+    arc_fractions : ndarray or None
+        Arc length from the first node to each node over the whole length, along the spline
+        (spline panellings only), so that another curve can be panelled the same way.
     """
 
     outline: Outline
     nodes: np.ndarray
     method: str
+    arc_fractions: np.ndarray | None = field(default=None, repr=False, compare=False)
     curve: object = field(default=None, repr=False, compare=False)
 
     def __post_init__(self):
@@ -67,122 +75,83 @@ class Panelling:
         """The same body with about half the panels (for the discretisation error estimate)."""
         n = max(MIN_PANELS, self.n_panels // 2)
         if self.method == "spline":
-            return respline(self.outline, n, curve=self.curve)
+            return respline(self.outline, n, curve=self.curve)  # the same fit, not a new one
         idx = np.unique(np.r_[np.arange(0, len(self.nodes) - 1, 2), len(self.nodes) - 1])
         return Panelling(self.outline, self.nodes[idx].copy(), self.method)
 
 
-class _Spline:
-    """Cubic interpolating spline with not-a-knot ends, for values of shape (n, d).
+def _spline(outline: Outline, parameter: str = "chord"):
+    """Parametric cubic spline through the outline (see :func:`curve.parametric_spline`)."""
+    return parametric_spline(outline.points, outline.kind == SMOOTH, parameter)
 
-    Written out (second-derivative form, banded solve) rather than taken from
-    scipy.interpolate, whose import alone costs about half a second of start-up.
+
+def _te_density(s: np.ndarray, chord: float, n_panels: int) -> np.ndarray:
+    """Node density growing like d^-1/2 towards the trailing edge, as cosine spacing does: the
+    surface speed is not smooth there (it varies like a fractional power of the distance), and
+    panels shrinking like 1/n^2 at the edge keep the error of that end region small."""
+    d_te = np.minimum(s, s[-1] - s) / chord + (_TE_CUTOFF / n_panels) ** 2
+    return _TE_WEIGHT * np.maximum(np.sqrt(_TE_WIDTH / d_te) - 1.0, 0.0)
+
+
+def _resolved(t, s, curvature_density, n_panels, chord, trailing_edge):
+    """The node density on samples fine enough that no sample step holds much of a panel.
+
+    The curvature part is known on the even samples ``t``; the trailing-edge part is evaluated
+    exactly wherever a sample lands. The samples are placed at equal steps of ``4 u + m s/L``
+    (``u`` the panel count reached, ``m`` the even samples, ``L`` the length), so each panel gets
+    at least about four and the even spacing is kept elsewhere; without that the first
+    trailing-edge panels and a thin section's nose fell inside one step, in runs of equal
+    spacing with jumps of 4 to 12 between the runs. Every step here is a continuous function of
+    the points, so nearly equal outlines get nearly equal nodes.
+
+    Returns
+    -------
+    (t, s, density) on the new samples.
     """
+    def total(sq, base):
+        return base + (_te_density(sq, chord, n_panels) if trailing_edge else 0.0)
 
-    def __init__(self, t: np.ndarray, y: np.ndarray):
-        n = len(t) - 1
-        h = np.diff(t)
-        dy = np.diff(y, axis=0) / h[:, None]
-        ab = np.zeros((5, n + 1))  # bands for (l, u) = (2, 2): ab[2 + i - j, j] = a[i, j]
-        rhs = np.zeros((n + 1, y.shape[1]))
-        i = np.arange(1, n)
-        ab[2 + 1, i - 1] = h[:-1]  # a[i, i-1]
-        ab[2, i] = 2.0 * (h[:-1] + h[1:])
-        ab[2 - 1, i + 1] = h[1:]  # a[i, i+1]
-        rhs[1:n] = 6.0 * (dy[1:] - dy[:-1])
-        # not-a-knot: third derivative continuous at the second and the last-but-one point
-        ab[2, 0], ab[1, 1], ab[0, 2] = h[1], -(h[0] + h[1]), h[0]
-        ab[4, n - 2], ab[3, n - 1], ab[2, n] = h[n - 1], -(h[n - 2] + h[n - 1]), h[n - 2]
-        self.t, self.y, self.h = t, y, h
-        # LAPACK's banded solver directly (scipy.linalg.solve_banded's checks cost as much);
-        # dgbsv wants two more rows of band storage for the fill-in of the pivoting
-        lub = np.zeros((7, n + 1))
-        lub[2:] = ab
-        _, _, m, info = scipy.linalg.lapack.dgbsv(2, 2, lub, rhs, overwrite_ab=True,
-                                                  overwrite_b=True)
-        if info != 0:
-            raise GeometryError("spline through the outline points cannot be fitted "
-                                "(repeated points?)")
-        self.m = m
-        # per interval, the cubic in u = t - t_i: y = c0 + u (c1 + u (c2 + u c3)), evaluated
-        # from gathers of its coefficients (the second-derivative form needed more work)
-        hh = h[:, None]
-        self._coef = (y[:-1], dy - hh * (2.0 * m[:-1] + m[1:]) / 6.0, 0.5 * m[:-1],
-                      (m[1:] - m[:-1]) / (6.0 * hh))
-
-    def _where(self, tq: np.ndarray, first: int):
-        t = self.t
-        i = np.clip(np.searchsorted(t, tq, side="right") - 1, 0, len(self.h) - 1)
-        return ((tq - t[i])[:, None],) + tuple(c[i] for c in self._coef[first:])
-
-    def __call__(self, tq: np.ndarray, nu: int = 0) -> np.ndarray:
-        """Value (nu = 0), first (1) or second (2) derivative at parameters ``tq``."""
-        if nu == 0:
-            u, c0, c1, c2, c3 = self._where(tq, 0)
-            return c0 + u * (c1 + u * (c2 + u * c3))
-        u, c1, c2, c3 = self._where(tq, 1)
-        if nu == 1:
-            return c1 + u * (2.0 * c2 + 3.0 * u * c3)
-        return 2.0 * c2 + 6.0 * u * c3
-
-    def derivatives(self, tq: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-        """First and second derivatives at ``tq`` (one interval search for both)."""
-        u, c1, c2, c3 = self._where(tq, 1)
-        c3u = u * c3
-        return c1 + u * (2.0 * c2 + 3.0 * c3u), 2.0 * c2 + 6.0 * c3u
+    dens = total(s, curvature_density)
+    cum = np.r_[0.0, np.cumsum(0.5 * (dens[1:] + dens[:-1]) * np.diff(s))]
+    m = len(t) - 1
+    w = _SAMPLES_PER_STEP * n_panels * cum / cum[-1] + m * s / s[-1]
+    tq = np.interp(np.linspace(0.0, w[-1], _SAMPLES_PER_STEP * n_panels + m + 1), w, t)
+    sq = np.interp(tq, t, s)
+    return tq, sq, total(sq, np.interp(tq, t, curvature_density))
 
 
-# A closed loop is splined as an open one with this many points wrapped on at each end: the end
-# conditions' influence decays by about a factor 3.7 per point, so 24 points leave < 1e-13.
-_WRAP = 24
+def _graded(density: np.ndarray, s: np.ndarray, n_panels: int, closed: bool) -> np.ndarray:
+    """Raise the node density where it falls faster than neighbouring panels may grow.
+
+    With ``u`` the panel count reached at arc length ``s``, neighbouring panels differ in length
+    by about ``exp(|d ln(density)/du|)``; the smallest density at or above the given one with
+    that slope at most ``ln(_GRADE)`` is the upper envelope of cones ``ln d(v) - L |u - v|``
+    (two running maxima). A nose much smaller than a panel otherwise gets a cluster of tiny
+    panels next to long ones (a factor 10 between neighbours on a 1 %-thick NACA section).
+    """
+    f = np.log(density)
+    slope = np.log(_GRADE)
+    for _ in range(3):  # u moves as the density rises; three passes settle it (a fixed count,
+        # so that the nodes stay a continuous function of the points)
+        cum = np.r_[0.0, np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s))]
+        u = cum * (n_panels / cum[-1])
+        if closed:  # the loop continues past its ends: envelope over three periods
+            uu = np.r_[u - n_panels, u, u + n_panels]
+            ff = np.r_[f, f, f]
+        else:
+            uu, ff = u, f
+        up = np.maximum.accumulate(ff + slope * uu) - slope * uu
+        down = np.maximum.accumulate((ff - slope * uu)[::-1])[::-1] + slope * uu
+        g = np.maximum(up, down)
+        if closed:
+            g = g[len(u):2 * len(u)]
+        f = g
+        density = np.exp(f)
+    return density
 
 
-def _spline(outline: Outline):
-    """Parametric cubic spline through the outline, parameter = cumulative chord length."""
-    pts = np.asarray(outline.points)
-    t = np.r_[0.0, np.cumsum(np.hypot(*np.diff(pts, axis=0).T))]
-    if outline.kind != SMOOTH:
-        return _Spline(t, pts), t[-1]
-    k = min(_WRAP, len(pts) - 2)
-    period = t[-1]
-    tt = np.r_[t[-k - 1:-1] - period, t, t[1:k + 1] + period]
-    yy = np.vstack([pts[-k - 1:-1], pts, pts[1:k + 1]])
-    return _Spline(tt, yy), period
-
-
-@dataclass(frozen=True)
-class _Curve:
-    """A spline fit of one outline with its fine samples: parameter, arc length, curvature."""
-
-    spline: _Spline
-    t: np.ndarray
-    s: np.ndarray
-    kappa: np.ndarray
-
-    @property
-    def samples(self) -> int:
-        return len(self.t) - 1
-
-
-def _samples(n_panels: int) -> int:
-    return max(2000, _SAMPLES_PER_PANEL * n_panels)  # fine samples for curvature and arc length
-
-
-def _fit(outline: Outline, n_panels: int) -> _Curve:
-    spl, t_end = _spline(outline)
-    m = _samples(n_panels)
-    t = np.linspace(0.0, t_end, m + 1)
-    d1, d2 = spl.derivatives(t)
-    speed = np.hypot(d1[:, 0], d1[:, 1])
-    kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
-    # arc length along the fine parameter grid (trapezoid)
-    s = np.empty(m + 1)
-    s[0] = 0.0
-    np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t), out=s[1:])
-    return _Curve(spl, t, s, kappa)
-
-
-def respline(outline: Outline, n_panels: int, curve=None) -> Panelling:
+def respline(outline: Outline, n_panels: int, parameter: str = "chord",
+             curve=None) -> Panelling:
     """Re-panel an outline with ``n_panels`` panels on a smooth spline through its points.
 
     Parameters
@@ -190,10 +159,12 @@ def respline(outline: Outline, n_panels: int, curve=None) -> Panelling:
     outline : Outline
     n_panels : int
         Number of surface panels (the base of a blunt trailing edge is extra).
-    curve : optional
-        The ``curve`` of an earlier panelling of the same outline (:attr:`Panelling.curve`):
-        its spline fit and fine samples are reused when they are at least as fine as
-        ``n_panels`` needs (the half-panel solve of the error estimate).
+    parameter : {"chord", "centripetal"}
+        Spline parameter; the second gives another curve through the same points, used to
+        estimate how much the answer depends on the curve between the points.
+    curve : (CubicSpline, float), optional
+        The fitted spline and its parameter end, from an earlier panelling of the same outline
+        (``Panelling.curve``), so that the half-panel solve does not fit it again.
 
     Returns
     -------
@@ -201,37 +172,78 @@ def respline(outline: Outline, n_panels: int, curve=None) -> Panelling:
     """
     if n_panels < MIN_PANELS:
         raise GeometryError(f"{outline.label}: at least {MIN_PANELS} panels needed, got {n_panels}")
-    if not isinstance(curve, _Curve) or curve.samples < _samples(n_panels):
-        curve = _fit(outline, n_panels)
-    t, s, kappa = curve.t, curve.s, curve.kappa
-    m = curve.samples
+    if parameter not in PARAMETERS:
+        raise GeometryError(f"unknown spline parameter {parameter!r}; use one of {PARAMETERS}")
+    spl, t_end = curve if curve is not None else _spline(outline, parameter)
+    m = max(2000, _SAMPLES_PER_PANEL * n_panels)  # fine samples for curvature and arc length
+    t = np.linspace(0.0, t_end, m + 1)
+    d1, d2 = spl.derivatives(t)
+    speed = np.hypot(d1[:, 0], d1[:, 1])
+    kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
+    # arc length along the fine parameter grid (trapezoid)
+    s = np.r_[0.0, np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t))]
     chord = outline.chord
     density = 1.0 + _CURVATURE_WEIGHT * (kappa * chord) ** _CURVATURE_POWER
     # Smooth the curvature term over about one mean panel so spacing changes gradually.
     # odd width: a centred moving average, so mirror-image outlines get mirror-image nodes
     width = 2 * (int(round(m / n_panels)) // 2) + 1
     kernel = np.ones(width) / width
-    if outline.kind == SMOOTH:  # np.pad's "wrap" and "edge", written out (np.pad costs more)
-        padded = np.concatenate([density[-width:], density, density[:width]])
-    else:
-        padded = np.concatenate([np.full(width, density[0]), density,
-                                 np.full(width, density[-1])])
-    density = np.convolve(padded, kernel, mode="same")[width:-width]
-    if outline.kind != SMOOTH:
-        # Node density growing like d^-1/2 towards the trailing edge, as cosine spacing does: the
-        # surface speed is not smooth there (it varies like a fractional power of the distance),
-        # and panels shrinking like 1/n^2 at the edge keep the error of that end region small.
-        d_te = np.minimum(s, s[-1] - s) / chord + (_TE_CUTOFF / n_panels) ** 2
-        density += _TE_WEIGHT * np.maximum(np.sqrt(_TE_WIDTH / d_te) - 1.0, 0.0)
-    cum = np.empty(m + 1)
-    cum[0] = 0.0
-    np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s), out=cum[1:])
+    mode = "wrap" if outline.kind == SMOOTH else "edge"
+    density = np.convolve(np.pad(density, width, mode=mode), kernel, mode="same")[width:-width]
+    t, s, density = _resolved(t, s, density, n_panels, chord, outline.kind != SMOOTH)
+    density = _graded(density, s, n_panels, outline.kind == SMOOTH)
+    cum = np.r_[0.0, np.cumsum(0.5 * (density[1:] + density[:-1]) * np.diff(s))]
     targets = np.linspace(0.0, cum[-1], n_panels + 1)
     t_nodes = np.interp(targets, cum, t)
-    nodes = curve.spline(t_nodes)
+    nodes = spl(t_nodes)
     nodes[0] = outline.points[0]
     nodes[-1] = outline.points[-1]
-    return Panelling(outline, nodes, "spline", curve)
+    return Panelling(outline, nodes, "spline", np.interp(t_nodes, t, s) / s[-1], (spl, t_end))
+
+
+def panelled_like(outline: Outline, reference: Panelling, parameter: str = "chord") -> Panelling:
+    """Panel ``outline`` with the nodes at the same arc-length fractions as ``reference``.
+
+    Used to compare two curves through nearly the same points without the comparison being
+    blurred by a different choice of nodes: the node density follows the curvature, which two
+    such curves share only to second order.
+
+    Parameters
+    ----------
+    outline : Outline
+        The other curve's body (same kind as the reference's).
+    reference : Panelling
+        A spline panelling (``arc_fractions`` set).
+    parameter : {"chord", "centripetal"}
+        Spline parameter of the other curve.
+
+    Returns
+    -------
+    Panelling
+    """
+    if reference.arc_fractions is None:
+        raise GeometryError(f"{outline.label}: the reference panelling has no arc fractions")
+    spl, t_end = _spline(outline, parameter)
+    m = max(2000, _SAMPLES_PER_PANEL * reference.n_panels)
+    t = np.linspace(0.0, t_end, m + 1)
+    speed = np.hypot(*spl(t, 1).T)
+    s = np.r_[0.0, np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t))]
+    frac = reference.arc_fractions
+    if outline.kind == SMOOTH:
+        # start where the reference starts (the loop of the other curve may start elsewhere)
+        pts = spl(t)
+        s0 = s[int(np.argmin(np.hypot(*(pts - reference.nodes[0]).T)))]
+        target = (s0 + frac * s[-1]) % s[-1]
+        target[-1] = target[0]
+    else:
+        target = frac * s[-1]
+    nodes = spl(np.interp(target, s, t))
+    if outline.kind != SMOOTH:
+        nodes[0] = outline.points[0]
+        nodes[-1] = outline.points[-1]
+    else:
+        nodes[-1] = nodes[0]
+    return Panelling(outline, nodes, "spline", frac.copy())
 
 
 def given_points(outline: Outline) -> Panelling:

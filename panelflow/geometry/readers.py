@@ -232,17 +232,23 @@ def _runs_end_to_end(x: np.ndarray, span: float) -> bool:
 
 
 def _merge_surfaces(first: np.ndarray, second: np.ndarray) -> np.ndarray:
-    """Join two surfaces listed from the same end into one loop through that end."""
+    """Join two surfaces listed from the same end into one loop through that end.
+
+    Rows are ``x, y`` and may carry more columns (the input line), which follow their point.
+    """
     if first[0, 0] > first[-1, 0]:  # listed TE -> LE: turn both round
         first, second = first[::-1], second[::-1]
     loop_start = first[::-1]  # TE -> LE
-    if np.allclose(second[0], first[0], rtol=0.0, atol=1e-12 * max(1.0, np.ptp(first))):
+    if np.allclose(second[0, :2], first[0, :2], rtol=0.0,
+                   atol=1e-12 * max(1.0, np.ptp(first[:, :2]))):
         second = second[1:]  # leading-edge point shared by both lists
     return np.vstack([loop_start, second])
 
 
 def _body_points(body: _Body, path: Path) -> np.ndarray:
-    pts = np.asarray(body.rows, dtype=float)
+    """The body's points as one loop, rows ``x, y, input line``."""
+    pts = np.column_stack([np.asarray(body.rows, dtype=float).reshape(-1, 2),
+                           np.asarray(body.lines, dtype=float)])
     counts = _count_line(body, path)
     if counts is not None:
         nu, _ = counts
@@ -274,7 +280,7 @@ def _names(bodies: list[_Body], stem: str) -> list[str]:
 
 
 def _outline(points: np.ndarray, name: str, path: Path, where: str,
-             starts_at_te: bool = True) -> Outline:
+             starts_at_te: bool = True, lines=None) -> Outline:
     big = np.abs(points) > MAX_COORDINATE
     if np.any(big):
         k = int(np.argmax(big.any(axis=1)))
@@ -283,7 +289,7 @@ def _outline(points: np.ndarray, name: str, path: Path, where: str,
                          "length unit; check the file")
     try:
         return Outline.from_points(points, name=name, source=str(path),
-                                   starts_at_trailing_edge=starts_at_te)
+                                   starts_at_trailing_edge=starts_at_te, lines=lines)
     except GeometryError as exc:
         msg = str(exc)
         if msg.startswith(str(path) + ": "):
@@ -322,9 +328,12 @@ def read_outline_table(path) -> list[Outline]:
             raise InputError(f"{p}: line {body.line}: body {body.title!r} has no points")
     names = _names(bodies, p.stem)
     many = len(bodies) > 1
-    return [_outline(_body_points(b, p), n, p,
-                     f"body {n!r} (from line {b.line}): " if many else "")
-            for b, n in zip(bodies, names)]
+    out = []
+    for b, n in zip(bodies, names):
+        rows = _body_points(b, p)
+        out.append(_outline(rows[:, :2], n, p, f"body {n!r} (from line {b.line}): " if many
+                            else "", lines=rows[:, 2].astype(np.int64)))
+    return out
 
 
 for _ext in (".dat", ".txt", ".csv", ".xy"):

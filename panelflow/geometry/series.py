@@ -56,6 +56,7 @@ import numpy as np
 
 from panelflow.errors import InputError
 from panelflow.geometry.outline import Outline
+from panelflow.geometry.sections import DEFAULT_POINTS
 
 __all__ = [
     "TRAILING_EDGE_SLOPES",
@@ -269,7 +270,7 @@ def _thickness_digits(t_digits: str, spec: str) -> float:
     return t
 
 
-def naca_modified(digits: str, le_index: int, max_position: int, n_points: int = 201,
+def naca_modified(digits: str, le_index: int, max_position: int, n_points: int = DEFAULT_POINTS,
                   closed_te: bool = False) -> Outline:
     """NACA 4- or 5-digit section with the modified 4-digit thickness ``-IM``, chord 1.
 
@@ -327,7 +328,7 @@ def _mean_line_of_digits(d: str, x, spec: str):
     return sec.mean_line_5(x, lift, pos)
 
 
-def naca16(digits: str, n_points: int = 201, closed_te: bool = False) -> Outline:
+def naca16(digits: str, n_points: int = DEFAULT_POINTS, closed_te: bool = False) -> Outline:
     """NACA 16-series section ``16-LTT``: modified thickness ``I = 4, M = 5``, ``a = 1`` mean line.
 
     Parameters
@@ -367,7 +368,7 @@ def _a_series_offsets(x, a: float, cl: float):
 
 
 def a_series_section(thickness_spec: str, a: float, cl_ideal: float,
-                     n_points: int = 201) -> Outline:
+                     n_points: int = DEFAULT_POINTS) -> Outline:
     """A symmetric NACA thickness form under the a-series mean line ``(a, cl_ideal)``.
 
     Parameters

@@ -14,7 +14,9 @@ from panelflow.analysis.result import as_result
 from panelflow.output.writers import CAUTION
 
 def _num(v, fmt):
-    return "-" if v is None or (isinstance(v, float) and math.isnan(v)) else format(v, fmt)
+    if v is None or (isinstance(v, float) and math.isnan(v)):
+        return "-".rjust(int(fmt.split(".")[0] or 0))  # keep the column width
+    return format(v, fmt)
 
 
 def decimals(errors) -> int:
@@ -76,7 +78,7 @@ def solve_table(result) -> str:
                      "accuracy check")
     lines.append("cl: lift from the circulation (Kutta-Joukowski); cl_p: pressure-integrated lift;")
     lines.append("cd_p: pressure drag, zero in exact inviscid flow (an accuracy check); "
-                 "+/-: discretisation error estimate")
+                 "+/-: error estimate (panels and input points)")
     if result.plane is not None:
         lines.append("near a plane, cl is the generalised circulation (Lagally) lift: the "
                      "bodies and their image pull on each other")
@@ -123,6 +125,33 @@ def margins_text(result) -> str:
     return text
 
 
+def _resolution_lines(rep) -> list[str]:
+    """How well the points define the shape, in the outline's units and in % of chord."""
+    if not rep.panels:  # not measured (the outline is unusable)
+        return []
+    c = rep.chord
+
+    def pct(v):
+        return f"{100 * v / c:.2g} % of chord"
+
+    if rep.scatter_cause == "rounding":
+        cause = f"what rounding the coordinates to {rep.rounding:g} gives"
+    elif rep.scatter_cause == "noise":
+        cause = "random, as digitising noise is" + (
+            f" (more than the rounding to {rep.rounding:g} gives)" if rep.rounding else "")
+    else:
+        cause = "the curve's own bending between the points, not noise"
+    return [
+        f"  spacing          up to {rep.largest_spacing:.2g} ({pct(rep.largest_spacing)}); "
+        f"{rep.nose_spacing:.2g} at the nose, whose radius is about {rep.nose_radius:.2g}; "
+        f"turns up to {rep.largest_turn_deg:.0f} deg from point to point",
+        f"  scatter          {rep.scatter:.2g} ({pct(rep.scatter)}) about a smooth curve "
+        f"through the neighbours: {cause}",
+        f"  panels           checked on the curve through the points at {rep.panels} and "
+        f"{max(8, rep.panels // 2)} panels",
+    ]
+
+
 def check_table(reports, overlap_messages) -> str:
     """The ``panelflow check`` report."""
     lines = []
@@ -140,9 +169,13 @@ def check_table(reports, overlap_messages) -> str:
                      f"{rep.chord_angle_deg:.3f} deg (nose-up positive)")
         lines.append(f"  thickness        {_num(100 * rep.max_thickness, '.2f')} % of chord; "
                      f"area {rep.area:.6g}")
+        lines += _resolution_lines(rep)
         lines.append("  status           " + ("ok" if rep.ok else "; ".join(rep.problems)))
+        lines += [f"  warning          {w}" for w in rep.warnings]
     for msg in overlap_messages:
         lines.append("problem: " + msg)
+    lines.append("lengths in the outline's own units; spacing, scatter and nose radius measured "
+                 "on the input points")
     return "\n".join(lines) + "\n"
 
 
