@@ -184,6 +184,10 @@ class Outline:
         Line of the input file each point was read from (one per row of ``points``), so that
         checks can name the line of a doubtful point; None when the points were not read from a
         text table.
+    exact : bool
+        True for points generated from a defining equation at the density a solve needs (the
+        built-in sections): the curve through them is the section to far below the panels'
+        error, so the error estimate adds no share for the input's own resolution.
     """
 
     name: str
@@ -191,6 +195,7 @@ class Outline:
     kind: str
     source: str = ""
     lines: np.ndarray | None = field(default=None, repr=False, compare=False)
+    exact: bool = field(default=False, repr=False, compare=False)
     trailing_edge: TrailingEdge = field(init=False, repr=False, compare=False)
     _leading_edge: np.ndarray = field(init=False, repr=False, compare=False)
 
@@ -218,7 +223,8 @@ class Outline:
     # ------------------------------------------------------------------ construction
     @classmethod
     def from_points(cls, points, name: str = "body", source: str = "",
-                    starts_at_trailing_edge: bool = True, lines=None) -> "Outline":
+                    starts_at_trailing_edge: bool = True, lines=None,
+                    exact: bool = False) -> "Outline":
         """Normalise any closed loop of points into an :class:`Outline`.
 
         Parameters
@@ -239,6 +245,9 @@ class Outline:
         lines : array_like of int, optional
             Input-file line of each point, kept beside the points through the reordering (see
             the ``lines`` attribute).
+        exact : bool
+            The points sample a defining equation as finely as a solve needs (a built-in
+            section): the input adds no error of its own (see the ``exact`` attribute).
 
         Returns
         -------
@@ -277,7 +286,7 @@ class Outline:
 
         def make(loop_idx, kind):
             return cls(name, poly[loop_idx], kind, source,
-                       None if in_lines is None else in_lines[idx[loop_idx]])
+                       None if in_lines is None else in_lines[idx[loop_idx]], exact)
 
         feature = None
         if starts_at_trailing_edge:
@@ -363,8 +372,8 @@ class Outline:
         if self.kind == SMOOTH:  # start again at the downstream end of the turned body
             order = _smooth_loop(pts[:-1], np.arange(len(pts) - 1))
             return Outline(self.name, pts[:-1][order], self.kind, self.source,
-                           None if self.lines is None else self.lines[:-1][order])
-        return Outline(self.name, pts, self.kind, self.source, self.lines)
+                           None if self.lines is None else self.lines[:-1][order], self.exact)
+        return Outline(self.name, pts, self.kind, self.source, self.lines, self.exact)
 
     def scaled(self, factor: float, about=(0.0, 0.0)) -> "Outline":
         """Return a copy scaled by ``factor`` about the point ``about``."""
@@ -388,7 +397,7 @@ class Outline:
         return self._mapped(c + (self.points - c) @ rot.T)
 
     def renamed(self, name: str) -> "Outline":
-        return Outline(name, self.points, self.kind, self.source, self.lines)
+        return Outline(name, self.points, self.kind, self.source, self.lines, self.exact)
 
     def __repr__(self) -> str:
         te = self.trailing_edge

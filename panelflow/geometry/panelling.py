@@ -72,12 +72,21 @@ class Panelling:
         return len(self.nodes) - 1
 
     def coarsened(self) -> "Panelling":
-        """The same body with about half the panels (for the discretisation error estimate)."""
+        """The same body with about half the panels (for the discretisation error estimate).
+
+        Made once per panelling: the geometry check and the error estimate use the same one.
+        """
+        done = self.__dict__.get("_coarsened")
+        if done is not None:
+            return done
         n = max(MIN_PANELS, self.n_panels // 2)
         if self.method == "spline":
-            return respline(self.outline, n, curve=self.curve)  # the same fit, not a new one
-        idx = np.unique(np.r_[np.arange(0, len(self.nodes) - 1, 2), len(self.nodes) - 1])
-        return Panelling(self.outline, self.nodes[idx].copy(), self.method)
+            done = respline(self.outline, n, curve=self.curve)  # the same fit, not a new one
+        else:
+            idx = np.unique(np.r_[np.arange(0, len(self.nodes) - 1, 2), len(self.nodes) - 1])
+            done = Panelling(self.outline, self.nodes[idx].copy(), self.method)
+        self.__dict__["_coarsened"] = done
+        return done
 
 
 def _spline(outline: Outline, parameter: str = "chord"):

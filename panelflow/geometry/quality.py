@@ -621,7 +621,15 @@ def inspect_input(outline: Outline) -> InputQuality:
     Returns
     -------
     InputQuality
+        Measured once per outline (outlines are immutable) and kept with it.
     """
+    done = outline.__dict__.get("_input_quality")
+    if done is None:
+        done = outline.__dict__["_input_quality"] = _inspect(outline)
+    return done
+
+
+def _inspect(outline: Outline) -> InputQuality:
     pts, closed = _chain(outline)
     chord = outline.chord
     found, first = doubtful_points(pts, closed, chord, with_residuals=True)
@@ -688,6 +696,8 @@ def _crossings(loop: np.ndarray) -> list:
     """Points where non-neighbouring segments of a closed loop meet."""
     import shapely
 
+    if shapely.is_simple(shapely.linearrings(loop)):  # one GEOS call settles the usual case
+        return []
     segs = shapely.linestrings(np.stack([loop[:-1], loop[1:]], axis=1))
     tree = shapely.STRtree(segs)
     a, b = tree.query(segs, predicate="intersects")
@@ -712,7 +722,18 @@ def panel_problems(panellings) -> PanelCheck:
     Returns
     -------
     PanelCheck
+        Found once per set of panellings (they are immutable) and kept with the first.
     """
+    panellings = tuple(panellings)
+    cache = panellings[0].__dict__.setdefault("_panel_checks", {}) if panellings else {}
+    key = tuple(id(pl) for pl in panellings)
+    hit = cache.get(key)
+    if hit is None or any(a is not b for a, b in zip(hit[0], panellings)):
+        hit = cache[key] = (panellings, _panel_problems(panellings))
+    return hit[1]
+
+
+def _panel_problems(panellings) -> PanelCheck:
     import shapely
 
     problems, notes = [], []

@@ -131,7 +131,7 @@ def _assemble(x, yt, yc, dyc, spec: str) -> Outline:
     lower = np.column_stack([x + yt * s, yc - yt * c])
     # upper TE -> LE, then lower without repeating the shared LE point -> lower TE
     loop = np.vstack([upper[::-1], lower[1:]])
-    return Outline.from_points(loop, name=spec, source=spec)
+    return Outline.from_points(loop, name=spec, source=spec, exact=True)
 
 
 def _naca_spec(digits: str, closed_te: bool) -> str:
@@ -291,7 +291,7 @@ def circle(radius: float = 1.0, n_points: int = DEFAULT_POINTS) -> Outline:
     n = _check_points(n_points, spec)
     phi = np.linspace(0.0, 2.0 * np.pi, n)
     return Outline.from_points(np.column_stack([r * np.cos(phi), r * np.sin(phi)]),
-                               name=spec, source=spec)
+                               name=spec, source=spec, exact=True)
 
 
 def ellipse(a: float, b: float, n_points: int = DEFAULT_POINTS) -> Outline:
@@ -319,7 +319,7 @@ def ellipse(a: float, b: float, n_points: int = DEFAULT_POINTS) -> Outline:
     n = _check_points(n_points, spec)
     phi = np.linspace(0.0, 2.0 * np.pi, n)
     return Outline.from_points(np.column_stack([a_ * np.cos(phi), b_ * np.sin(phi)]),
-                               name=spec, source=spec)
+                               name=spec, source=spec, exact=True)
 
 
 def _is_number(v) -> bool:
@@ -433,7 +433,7 @@ def _map_outline(z: np.ndarray, te: float, spec: str) -> Outline:
     loop = np.concatenate([[te], z, [te]])
     try:
         return Outline.from_points(np.column_stack([loop.real, loop.imag]), name=spec,
-                                   source=spec)
+                                   source=spec, exact=True)
     except GeometryError as exc:
         raise InputError(f"{spec}: the centre gives no usable section ({exc})") from None
 
