@@ -172,13 +172,19 @@ def lag_factor(ce: float, cf0: float) -> float:
 # --- the same relations on arrays (the simultaneous Newton iteration evaluates all stations at
 # once) ---------------------------------------------------------------------------------------
 
+_DERIVATIVES = {}
+
+
 def _fitted_array(c, h):
     lo, hi = LAMINAR_H_RANGE
     hc = np.clip(h, lo, hi)
     t = np.log(hc - 1.0)
     v = np.polyval(c, t)
-    slope = np.polyval(np.polyder(c), t) / (hc - 1.0)
-    return v + slope * (h - hc)
+    out = hc != h
+    if np.any(out):
+        d = _DERIVATIVES.setdefault(c, np.polyder(np.asarray(c)))
+        v = v + np.polyval(d, t) / (hc - 1.0) * (h - hc)
+    return v
 
 
 def laminar_array(h):
