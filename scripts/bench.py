@@ -11,9 +11,13 @@
     timing; the in-process run and the run with the pool start are printed)  goal >= 1.7
 (f) the study runner's overhead per case, in-process and on 2 processes, against bare
     solves of the same sections (printed)
+(g) one converged viscous point at 200 panels against one inviscid analysis of the same
+    section                                                                   goal <= 20
+(h) a 41-angle warm-started viscous polar against 41 single cold points      goal <= 0.5
 
 Each timing is the best of several repeats, so other load on the machine inflates it least.
-Run: ``python scripts/bench.py`` (about a minute).
+Run: ``python scripts/bench.py`` (about a minute, plus about four for the viscous section;
+``python scripts/bench.py viscous`` runs that section alone).
 """
 
 from __future__ import annotations
@@ -217,5 +221,76 @@ def main() -> int:
     return 0
 
 
+# --- viscous analysis (its own section: run alone with ``python scripts/bench.py viscous``) ---
+
+VISCOUS_GOALS = {"g": 20.0, "h": 0.5}
+
+
+def bench_viscous_point(n_panels: int = 200, reynolds: float = 3e6, alpha: float = 2.0):
+    """(g): one converged viscous point against one inviscid solve of the same section.
+
+    Both sides panel and factorise the section themselves; the inviscid side is the full
+    analysis (with its error-estimate solve), the viscous side the coupled iteration from a
+    cold start. Returns (inviscid s, viscous s, ratio, iterations).
+    """
+    from panelflow.viscous import solve as viscous_solve
+
+    foil = [naca4("0012")]
+
+    def inviscid():
+        pf.analyse(foil, [alpha], n_panels=n_panels)
+
+    def viscous():
+        _, system = build(foil, n_panels)
+        out = viscous_solve(system, alpha, reynolds)
+        if not out.converged:
+            raise RuntimeError("benchmark point did not converge")
+        return out
+
+    t_inv = best_of(inviscid, repeats=5)
+    t_vis = best_of(viscous, repeats=3)
+    return t_inv, t_vis, t_vis / t_inv, viscous().iterations
+
+
+def bench_viscous_polar(n_panels: int = 200, reynolds: float = 3e6):
+    """(h): a 41-angle warm-started viscous polar against 41 cold single points.
+
+    Angles -10 to 10 degrees by 0.5. Each side runs once (about a minute each); the counts of
+    converged angles are returned too. Returns (polar s, cold s, ratio, converged polar,
+    converged cold).
+    """
+    from panelflow.viscous import polar as viscous_polar
+    from panelflow.viscous import solve as viscous_solve
+
+    _, system = build([naca4("0012")], n_panels)
+    angles = np.linspace(-10.0, 10.0, 41)
+    t0 = time.perf_counter()
+    sweep = viscous_polar(system, angles, reynolds)
+    t_polar = time.perf_counter() - t0
+    t0 = time.perf_counter()
+    cold = [viscous_solve(system, a, reynolds) for a in angles]
+    t_cold = time.perf_counter() - t0
+    return (t_polar, t_cold, t_polar / t_cold, int(sweep.converged.sum()),
+            sum(r.converged for r in cold))
+
+
+def viscous_section() -> int:
+    t_inv, t_vis, rg, iterations = bench_viscous_point()
+    print(f"(g) one viscous point (NACA 0012, 200 panels, Re 3e6, 2 deg, cold start, "
+          f"{iterations} Newton iterations) {1e3 * t_vis:.0f} ms vs one inviscid analysis "
+          f"{1e3 * t_inv:.0f} ms   ratio {rg:.2f}")
+    t_polar, t_cold, rh, n_polar, n_cold = bench_viscous_polar()
+    print(f"(h) 41-angle warm-started polar {t_polar:.1f} s ({n_polar}/41 converged) vs 41 cold "
+          f"points {t_cold:.1f} s ({n_cold}/41 converged)   ratio {rh:.2f}")
+    for key, ratio in (("g", rg), ("h", rh)):
+        verdict = "met" if ratio <= VISCOUS_GOALS[key] else "NOT met"
+        print(f"goal ({key}) <= {VISCOUS_GOALS[key]:g}: {ratio:.2f} {verdict}")
+    return 0
+
+
 if __name__ == "__main__":
-    sys.exit(main())
+    if sys.argv[1:] == ["viscous"]:
+        sys.exit(viscous_section())
+    code = main()
+    print()
+    sys.exit(code or viscous_section())

@@ -26,8 +26,10 @@ from panelflow.viscous.transition import Transition
 from panelflow.viscous.wake import WAKE_LENGTH, trailing_edge, wake_nodes
 
 REYNOLDS_RANGE = (1e4, 1e9)
-# continuation step for a cold start at a large angle, degrees
-COLD_STEP = 3.0
+# steps of the angle walk when a point does not converge directly: from a warm start's angle,
+# and from zero angle for a cold start, degrees
+WARM_STEP = 0.5
+COLD_STEP = 1.5
 
 
 def check_supported(system: System) -> None:
@@ -171,19 +173,29 @@ def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations) -> Visc
         if (lay.n == coupled.m_nodes + coupled.nw and warm_start.reynolds == reynolds):
             start = warm_start.state
     with np.errstate(all="ignore"):
-        if start is not None:
-            sol = coupled.run(start.y, start.layout, max_iterations)
-            if not sol.converged:
-                sol = _better(sol, coupled.run(start.y, start.layout, 2 * max_iterations,
-                                               bold=True))
-        else:
-            sol = coupled.run(max_iterations=max_iterations)
-            if not sol.converged:
-                sol = _better(sol, coupled.run(max_iterations=2 * max_iterations, bold=True))
-            if not sol.converged and abs(alpha) > COLD_STEP:
-                # a cold start far from zero angle: continue from small angles instead
-                sol = _continuation(geo, alpha, re_unit, transition, max_iterations) or sol
+        sol = _attempt(coupled, start, max_iterations)
+        if not sol.converged:
+            # walk there in small steps from the warm start's angle, or from zero angle
+            origin = (warm_start.alpha_deg, start) if start is not None else (0.0, None)
+            step = WARM_STEP if start is not None else COLD_STEP
+            walked = _continuation(geo, origin, alpha, re_unit, transition, max_iterations,
+                                   step)
+            if walked is not None:
+                coupled, sol = walked
     return _result(geo, alpha, reynolds, gamma, coupled, sol)
+
+
+def _attempt(coupled, start, max_iterations):
+    """One run from the start (or cold); if it fails, one more with bolder steps."""
+    if start is not None:
+        sol = coupled.run(start.y, start.layout, max_iterations)
+        if not sol.converged:
+            sol = _better(sol, coupled.run(start.y, start.layout, max_iterations, bold=True))
+        return sol
+    sol = coupled.run(max_iterations=max_iterations)
+    if not sol.converged:
+        sol = _better(sol, coupled.run(max_iterations=max_iterations, bold=True))
+    return sol
 
 
 def _better(a, b):
@@ -193,17 +205,21 @@ def _better(a, b):
     return a
 
 
-def _continuation(geo, alpha, re_unit, transition, max_iterations):
-    steps = int(np.ceil(abs(alpha) / COLD_STEP))
-    prev = None
-    for a in np.linspace(0.0, alpha, steps + 1):
+def _continuation(geo, origin, alpha, re_unit, transition, max_iterations, step):
+    """Angles from ``origin`` (angle, state or None) to ``alpha`` in steps of at most
+    ``step`` degrees, each started from the last; None if one of them fails."""
+    a0, state = origin
+    n = max(1, int(np.ceil(abs(alpha - a0) / step)))
+    angles = np.linspace(a0, alpha, n + 1)[1:] if state is not None else np.linspace(
+        a0, alpha, n + 1)
+    coupled = None
+    for a in angles:
         coupled, _ = _coupled(geo, float(a), re_unit, transition)
-        sol = (coupled.run(max_iterations=max_iterations) if prev is None
-               else coupled.run(prev.y, prev.layout, max_iterations))
+        sol = _attempt(coupled, state, max_iterations)
         if not sol.converged:
             return None
-        prev = sol
-    return prev
+        state = sol
+    return coupled, state
 
 
 def _layer(name, geo, coupled, sol, idx, xc_nodes):

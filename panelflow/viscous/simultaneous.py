@@ -101,12 +101,12 @@ def _laminar(ya, yb, ds, re, terms_a=None, terms_b=None):
                      yb[:, 2] - ya[:, 2] - 0.5 * ds * (ra + rb)], axis=1)
 
 
-def _turbulent(ya, yb, ds, re, wake, ce_a=None, terms_a=None, terms_b=None):
+def _turbulent(ya, yb, ds, re, wake, ce_a=None, terms_a=None, terms_b=None, dl_scale=1.0):
     h1a, q1a, q2a, q3a, fa, _ = _turb_terms(ya, re, wake, ce_a) if terms_a is None else terms_a
     h1b, q1b, q2b, q3b, fb, _ = _turb_terms(yb, re, wake) if terms_b is None else terms_b
     w = _weight(ya[:, 1], yb[:, 1], *UPWIND_TURBULENT)
     v = 1.0 - w
-    dl = np.log(yb[:, 3] / ya[:, 3])
+    dl = dl_scale * np.log(yb[:, 3] / ya[:, 3])
     ha, hb = ya[:, 1], yb[:, 1]
     cea = ya[:, 2] if ce_a is None else ce_a
     return np.stack([yb[:, 0] - ya[:, 0] - ds * (v * q1a + w * q1b)
@@ -130,8 +130,15 @@ def _transition_fraction(ya, yb, ds, re, n_crit, trip):
 
 
 def _transition(ya, yb, ds, re, n_crit, trip):
-    """Interval holding transition: a laminar part f ds, then a turbulent part from C_E's
-    equilibrium value; the two parts' equations weighted by their lengths."""
+    """Interval holding transition: laminar for a fraction f of it, then turbulent.
+
+    Momentum: the laminar and turbulent wall friction weighted by their lengths. Shape and lag
+    equations: the turbulent ones over the turbulent part, starting from the laminar state at
+    a (the laminar H carried over, C_E at its equilibrium value). So the station at the end of
+    the interval always carries a turbulent shape factor that starts from the laminar one as f
+    goes to 1; blending the laminar and turbulent shape equations by f instead made that shape
+    factor jump with f and the transition interval ping-pong between stations (measured).
+    """
     la, lb = _lam_terms(ya, re), _lam_terms(yb, re)
     f, _, _ = _fraction(ya, la, lb, ds, n_crit, trip)
     wall = np.zeros(len(ya), bool)
@@ -141,9 +148,8 @@ def _transition(ya, yb, ds, re, n_crit, trip):
     tb = _turb_terms(yb, re, wall)
     rl = _laminar(ya, yb, ds, re, la, lb)
     rt_full = _turbulent(ya, yb, ds, re, wall, ce_a, ta, tb)
-    rt = _turbulent(ya, yb, (1.0 - f) * ds, re, wall, ce_a, ta, tb)
-    r1 = f * rl[:, 0] + (1.0 - f) * rt_full[:, 0]
-    return np.stack([r1, f * rl[:, 1] + (1.0 - f) * rt[:, 1], rt[:, 2]], axis=1)
+    rt = _turbulent(ya, yb, (1.0 - f) * ds, re, wall, ce_a, ta, tb, dl_scale=1.0 - f)
+    return np.stack([f * rl[:, 0] + (1.0 - f) * rt_full[:, 0], rt[:, 1], rt[:, 2]], axis=1)
 
 
 def _start(y, s, re):
@@ -587,9 +593,10 @@ class Coupled:
             sign = np.where(lay.side == 0, -1.0, 1.0)
             mt = np.empty(self.m_nodes + self.nw)
             mt[lay.node] = sign * np.exp(y[:, 0]) * y[:, 1] * y[:, 3]
-            k, _ = _stagnation((self.u_inv + self.d @ mt)[:self.m_nodes], self.arc)
+            speeds = self.u_inv + self.d @ mt
+            k, s0 = _stagnation(speeds[:self.m_nodes], self.arc)
             if k != lay.node[lay.side_stations(0)[0]]:
-                lay, y = self.relayout(lay, y, k)
+                lay, y = self.relayout(lay, y, k, speeds, s0)
         history = []
         converged = False
         residual = np.inf
@@ -663,12 +670,18 @@ class Coupled:
             mt = np.empty(self.m_nodes + self.nw)
             mt[lay.node] = sign * theta * y[:, 1] * y[:, 3]
             speeds = self.u_inv + self.d @ mt
-            k_new, _ = _stagnation(speeds[:self.m_nodes], self.arc)
+            k_new, s0_new = _stagnation(speeds[:self.m_nodes], self.arc)
             # one node per iteration at most: far moves come from an unconverged state
             k_new = min(max(k_new, ku - 1, 3), ku + 1, self.m_nodes - 5)
-            # ... and only once the iteration has settled (it chases noise before)
-            if k_new != ku and residual < STAGNATION_SETTLED:
-                lay, y = self.relayout(lay, y, k_new)
+            # ... only once the iteration has settled (it chases noise before), and only when
+            # the point left the current panel by a quarter of the next panel (a stagnation
+            # point on a node -- a symmetric section at zero angle -- flipped the layout back
+            # and forth otherwise)
+            margin = 0.25 * np.diff(self.arc)[min(max(ku + (1 if k_new > ku else -1), 0),
+                                                  len(self.arc) - 2)]
+            left = s0_new < self.arc[ku] - margin or s0_new > self.arc[ku + 1] + margin
+            if k_new != ku and residual < STAGNATION_SETTLED and left:
+                lay, y = self.relayout(lay, y, k_new, speeds, s0_new)
                 fresh = True
         return self.solution(lay, y, converged, residual, it, history)
 
@@ -684,8 +697,10 @@ class Coupled:
         y[~free, 3] = np.maximum(y[~free, 3], 1e-6)
         return y
 
-    def relayout(self, lay: Layout, y: np.ndarray, k: int):
-        """Stations for a stagnation point that moved to panel k; states carried by node."""
+    def relayout(self, lay: Layout, y: np.ndarray, k: int, speeds: np.ndarray, s0: float):
+        """Stations for a stagnation point that moved to panel k; states carried by node, the
+        stations nearest the new stagnation point restarted from the outer flow's speeds
+        ``speeds`` (signed nodal) in Hiemenz flow."""
         new = self.layout(k)
         pos = np.empty(self.m_nodes + self.nw, int)
         pos[lay.node] = np.arange(lay.n)
@@ -696,6 +711,15 @@ class Coupled:
         new.regime[moved] = LAMINAR
         y2[moved, 2] = 0.0
         y2[moved, 3] = np.abs(y2[moved, 3])
+        new.s = self.arc_lengths(new, s0)
+        for side, sgn in ((0, -1.0), (1, 1.0)):
+            st = new.side_stations(side)[:4]
+            ue = np.maximum(sgn * speeds[new.node[st]], 1e-6)
+            a = ue[-1] / new.s[st[-1]]  # the speed gradient, from the farthest of them
+            st_sim = bl.similar_start(float(new.s[st[-1]]), float(ue[-1]), 1.0, self.re)
+            y2[st] = np.stack([np.full(len(st), np.log(st_sim.theta)), np.full(len(st), st_sim.h),
+                               np.zeros(len(st)), np.maximum(a * new.s[st], 1e-6)], axis=1)
+            new.regime[st] = LAMINAR
         return new, y2
 
     def solution(self, lay, y, converged, residual, iterations, history) -> Solution:
