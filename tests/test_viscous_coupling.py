@@ -150,3 +150,25 @@ def test_trip_is_reported_as_forced(naca0012):
     assert r.converged
     assert r.transition_upper_forced and not r.transition_lower_forced
     assert r.transition_upper == pytest.approx(0.1, abs=0.01)
+
+
+def test_viscous_stage_imports_only_earlier_stages():
+    # the viscous stage sits between flow and conditions: it may use geometry and flow only
+    import ast
+    from pathlib import Path
+
+    import panelflow.viscous
+
+    later = ("conditions", "analysis", "loads", "output", "study", "cli")
+    for path in Path(panelflow.viscous.__file__).parent.glob("*.py"):
+        tree = ast.parse(path.read_text())
+        for node in ast.walk(tree):
+            names = []
+            if isinstance(node, ast.ImportFrom) and node.module:
+                names = [node.module]
+            elif isinstance(node, ast.Import):
+                names = [a.name for a in node.names]
+            for name in names:
+                parts = name.split(".")
+                assert not (parts[0] == "panelflow" and len(parts) > 1 and parts[1] in later), (
+                    f"{path.name} imports {name}")

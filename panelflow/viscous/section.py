@@ -30,6 +30,8 @@ REYNOLDS_RANGE = (1e4, 1e9)
 # and from zero angle for a cold start, degrees
 WARM_STEP = 0.5
 COLD_STEP = 1.5
+# Newton iterations a warm start gets before the cold start is tried
+WARM_BUDGET = 30
 
 
 def check_supported(system: System) -> None:
@@ -173,7 +175,14 @@ def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations) -> Visc
         if (lay.n == coupled.m_nodes + coupled.nw and warm_start.reynolds == reynolds):
             start = warm_start.state
     with np.errstate(all="ignore"):
-        sol = _attempt(coupled, start, max_iterations)
+        if start is not None:
+            # a warm start helps when it is close; when it is not (transition moving many
+            # stations) a cold start from a direct march at this angle does better (measured)
+            sol = coupled.run(start.y, start.layout, min(max_iterations, WARM_BUDGET))
+            if not sol.converged:
+                sol = _better(sol, _attempt(coupled, None, max_iterations))
+        else:
+            sol = _attempt(coupled, None, max_iterations)
         if not sol.converged:
             # walk there in small steps from the warm start's angle, or from zero angle
             origin = (warm_start.alpha_deg, start) if start is not None else (0.0, None)
@@ -379,9 +388,10 @@ def polar(panels_or_system, alpha_deg, reynolds: float, transition: Transition |
     """Viscous analysis over several angles, each started from its converged neighbour.
 
     The sweep starts at the angle nearest zero and runs up, then down from it. An angle that
-    does not converge is retried from its neighbour in half-steps; if it still fails it is
-    flagged and the sweep goes on from the last converged solution, so a polar through stall
-    finishes with every angle flagged or converged.
+    does not converge from its neighbour is retried cold and then walked to in small steps
+    (see ``solve``); if it still fails it is flagged and the sweep goes on from the last
+    converged solution, so a polar through stall finishes with every angle flagged or
+    converged.
     """
     alphas = np.unique(np.asarray(alpha_deg, float))
     if alphas.size == 0 or not np.all(np.isfinite(alphas)):
@@ -397,9 +407,6 @@ def polar(panels_or_system, alpha_deg, reynolds: float, transition: Transition |
         failed = False
         for i in order:
             res = _solve(geo, float(alphas[i]), re, transition, prev, max_iterations)
-            if not res.converged and prev is not None:
-                res = _half_steps(geo, prev, float(alphas[i]), re, transition,
-                                  max_iterations) or res
             results[i] = res
             after[i] = failed
             if res.converged:
@@ -408,15 +415,6 @@ def polar(panels_or_system, alpha_deg, reynolds: float, transition: Transition |
                 failed = True
     return ViscousPolar(alphas, re, tuple(results),
                         np.array([r.converged for r in results]), after)
-
-
-def _half_steps(geo, prev, alpha, re, transition, max_iterations):
-    mid = 0.5 * (prev.alpha_deg + alpha)
-    res = _solve(geo, mid, re, transition, prev, max_iterations)
-    if not res.converged:
-        return None
-    res = _solve(geo, alpha, re, transition, res, max_iterations)
-    return res if res.converged else None
 
 
 def unconverged_message(result: ViscousResult) -> str:
