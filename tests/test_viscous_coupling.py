@@ -114,6 +114,7 @@ def test_unconverged_angle_is_flagged(naca0012):
     assert isinstance(r, ViscousResult)  # a flag never changes the return type
 
 
+@pytest.mark.slow
 def test_warm_start_from_a_neighbour(naca0012, zero_lift):
     cold = solve(naca0012, 2.0, 3e6)
     warm = solve(naca0012, 2.0, 3e6, warm_start=zero_lift)

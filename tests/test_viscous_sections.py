@@ -122,10 +122,10 @@ def test_laminar_separation_bubble_at_low_reynolds_number(naca0012_closed):
 
 @pytest.mark.slow
 def test_polar_through_stall(naca0012):
-    angles = np.arange(0.0, 26.0, 2.0)
+    angles = np.arange(0.0, 29.0, 4.0)
     sweep = polar(naca0012, angles, 3e6)
     assert len(sweep.results) == len(angles)
-    assert sweep.converged[:5].all()  # 0-8 degrees
+    assert sweep.converged[:3].all()  # 0-8 degrees
     for r in sweep.results:
         if r.converged:
             assert np.isfinite([r.cl, r.cd, r.cm]).all()

@@ -16,11 +16,12 @@ logarithmic differences above, which stay exact for power-law edge speeds at any
 the d(ln Ue) terms. The unknowns of a station are solved by Newton's method with a
 finite-difference Jacobian (two unknowns laminar, three turbulent).
 
-The edge speed of a station may itself be an unknown, tied to the station's displacement by a
-local interaction law ``Ue = A + K m`` with ``m = Ue delta*`` (A and K given by the caller; the
-quasi-simultaneous method of A. E. P. Veldman, AIAA J. 19, 1981, and J. Eng. Math. 65, 2009). With
-K > 0 the station equations stay regular through separation, where the direct problem (Ue given)
-has the Goldstein singularity. K = 0 is the direct problem.
+The edge speed of a station may also be tied to the station's displacement by a local law
+``Ue = A + K m`` with ``m = Ue delta*`` (A and K from the caller, an interaction law in the sense
+of A. E. P. Veldman, AIAA J. 19, 1981); K = 0 is the direct problem, the only use here: the
+coupled analysis solves all stations together instead (see ``simultaneous``). The direct march
+meets Goldstein's singularity at laminar separation; it starts the coupled iteration and
+serves the checks on given edge speeds.
 """
 
 from __future__ import annotations

@@ -32,6 +32,8 @@ WARM_STEP = 0.5
 COLD_STEP = 1.5
 # Newton iterations a warm start gets before the cold start is tried
 WARM_BUDGET = 30
+# Newton iterations of each try at a polar's angles after one failed
+AFTER_FAILURE = 40
 
 
 def check_supported(system: System) -> None:
@@ -166,7 +168,8 @@ def _coupled(geo: _Geometry, alpha: float, re_unit: float, transition: Transitio
     return sim.Coupled(influence, gamma, geo.arc, geo.xc, re_unit, transition, geo.base), gamma
 
 
-def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations) -> ViscousResult:
+def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations,
+           walk: bool = True) -> ViscousResult:
     re_unit = reynolds / geo.chord_line.length
     coupled, gamma = _coupled(geo, alpha, re_unit, transition)
     start = None
@@ -183,7 +186,7 @@ def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations) -> Visc
                 sol = _better(sol, _attempt(coupled, None, max_iterations))
         else:
             sol = _attempt(coupled, None, max_iterations)
-        if not sol.converged:
+        if not sol.converged and walk:
             # walk there in small steps from the warm start's angle, or from zero angle
             origin = (warm_start.alpha_deg, start) if start is not None else (0.0, None)
             step = WARM_STEP if start is not None else COLD_STEP
@@ -224,7 +227,10 @@ def _continuation(geo, origin, alpha, re_unit, transition, max_iterations, step)
     coupled = None
     for a in angles:
         coupled, _ = _coupled(geo, float(a), re_unit, transition)
-        sol = _attempt(coupled, state, max_iterations)
+        if state is None:
+            sol = _attempt(coupled, None, max_iterations)
+        else:  # small steps: a plain warm run or give up (a walk must stay cheap)
+            sol = coupled.run(state.y, state.layout, min(max_iterations, 2 * WARM_BUDGET))
         if not sol.converged:
             return None
         state = sol
@@ -406,7 +412,11 @@ def polar(panels_or_system, alpha_deg, reynolds: float, transition: Transition |
         prev = results[start] if order.start != start else None
         failed = False
         for i in order:
-            res = _solve(geo, float(alphas[i]), re, transition, prev, max_iterations)
+            # past a failure (stall, usually) no angle walks: they would start from an old
+            # angle each time and cost minutes without a better chance
+            res = _solve(geo, float(alphas[i]), re, transition, prev,
+                         max_iterations if not failed else min(max_iterations, AFTER_FAILURE),
+                         walk=not failed)
             results[i] = res
             after[i] = failed
             if res.converged:

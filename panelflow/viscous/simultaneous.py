@@ -12,10 +12,11 @@ coefficient C_E when turbulent) and the edge speed Ue. Equations at every statio
   mass-defect influence of :mod:`panelflow.viscous.displacement`.
 
 The Jacobian's boundary-layer rows are block-bidiagonal along each march (finite differences,
-evaluated for all stations at once); they are eliminated station by station, which leaves a
-dense system for the edge-speed corrections alone (one unknown per station). The iteration is
-damped (bounded changes of each variable) and the transition interval is moved one station at a
-time as N passes the critical value.
+evaluated for all stations at once); they are eliminated station by station in the inverse form
+(each station's unknowns as functions of the mass defects), which leaves a dense system for the
+mass-defect corrections alone (one unknown per station). The iteration is damped (bounded
+changes of each variable) and the transition interval is moved one station at a time as N
+passes the critical value.
 
 Why a fully simultaneous Newton iteration rather than a local interaction law swept station by
 station (the quasi-simultaneous method of A. E. P. Veldman, AIAA J. 19, 1981; J. Eng. Math. 65,
