@@ -26,6 +26,13 @@ D      200 x 200 field per pair / floor per pair                      <= 3
 E      study 20 sections x 81 angles: 1 process / 2 processes         >= 1.8
 =====  ============================================================  =====
 
+and, with ``--viscous`` (about four minutes more), the viscous analysis:
+
+=====  ============================================================  =====
+G      one converged viscous point, 200 panels / one inviscid analysis <= 20
+H      41-angle warm-started viscous polar / 41 cold single points     <= 0.5
+=====  ============================================================  =====
+
 plus the field's peak memory beyond its results at 1000 x 1000 and 2000 x 2000 points (goal:
 under 200 MiB), and, printed for information, the kernels in numpy (the fallback), a 101-angle
 sweep, the command-line start-up and a large factorisation on all cores.
@@ -418,13 +425,92 @@ def run(repeats: int = 15, large: bool = True, extras: bool = True) -> dict:
     return out
 
 
+# ------------------------------------------------------------------------- viscous analysis
+VISCOUS_GOALS = {
+    "G": ("one viscous point, 200 panels, cold start / one inviscid analysis", "<=", 20.0),
+    "H": ("41-angle warm-started viscous polar / 41 cold single points", "<=", 0.5),
+}
+
+
+def _best_wall(func, repeats: int) -> float:
+    best = float("inf")
+    for _ in range(repeats):
+        t0 = time.perf_counter()
+        func()
+        best = min(best, time.perf_counter() - t0)
+    return best
+
+
+def goal_viscous_point(n_panels: int = 200, reynolds: float = 3e6, alpha: float = 2.0) -> dict:
+    """G: one converged viscous point (cold start) against one inviscid analysis of the same
+    section, both building their own system (wall time, best of several: the Newton iteration
+    takes about a second, too long to interleave many repeats)."""
+    from panelflow.viscous import solve as viscous_solve
+
+    foil = [naca4("0012")]
+
+    def inviscid():
+        pf.analyse(foil, [alpha], n_panels=n_panels)
+
+    def viscous():
+        _, system = build(foil, n_panels)
+        out = viscous_solve(system, alpha, reynolds)
+        if not out.converged:
+            raise RuntimeError("benchmark point did not converge")
+        return out
+
+    with threads.limited(1), threads.one_blas_thread():
+        t_inv, t_vis = _best_wall(inviscid, 7), _best_wall(viscous, 3)
+    return {"inviscid_s": t_inv, "viscous_s": t_vis, "ratio": t_vis / t_inv}
+
+
+def goal_viscous_polar(n_panels: int = 200, reynolds: float = 3e6) -> dict:
+    """H: a 41-angle warm-started viscous polar (-10 to 10 deg) against 41 cold points."""
+    from panelflow.viscous import polar as viscous_polar
+    from panelflow.viscous import solve as viscous_solve
+
+    _, system = build([naca4("0012")], n_panels)
+    angles = np.linspace(-10.0, 10.0, 41)
+    with threads.limited(1), threads.one_blas_thread():
+        t0 = time.perf_counter()
+        sweep = viscous_polar(system, angles, reynolds)
+        t_polar = time.perf_counter() - t0
+        t0 = time.perf_counter()
+        cold = [viscous_solve(system, a, reynolds) for a in angles]
+        t_cold = time.perf_counter() - t0
+    return {"polar_s": t_polar, "cold_s": t_cold, "ratio": t_polar / t_cold,
+            "converged_polar": int(np.sum(sweep.converged)),
+            "converged_cold": int(sum(r.converged for r in cold))}
+
+
+def run_viscous() -> dict:
+    out = {}
+    g = out["G"] = goal_viscous_point()
+    print(f"G  viscous point {1e3 * g['viscous_s']:.0f} ms, inviscid analysis "
+          f"{1e3 * g['inviscid_s']:.1f} ms: ratio {g['ratio']:.2f}")
+    h = out["H"] = goal_viscous_polar()
+    print(f"H  warm polar {h['polar_s']:.1f} s ({h['converged_polar']}/41 converged), 41 cold "
+          f"points {h['cold_s']:.1f} s ({h['converged_cold']}/41): ratio {h['ratio']:.2f}")
+    for key, (what, sense, goal) in VISCOUS_GOALS.items():
+        ratio = out[key]["ratio"]
+        met = ratio <= goal if sense == "<=" else ratio >= goal
+        print(f"  {key} {ratio:7.2f}  goal {sense} {goal:g}: {'met' if met else 'NOT met'}   {what}")
+    return out
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description="panelflow speed ratios, measured side by side")
     parser.add_argument("--json", metavar="FILE", help="write every number to FILE as JSON")
     parser.add_argument("--quick", action="store_true",
                         help="fewer repeats, no 2000 x 2000 field, no extras")
+    parser.add_argument("--viscous", action="store_true",
+                        help="also the viscous goals G and H (about four minutes more)")
+    parser.add_argument("--viscous-only", action="store_true", help="only the viscous goals")
     ns = parser.parse_args(argv)
-    out = run(repeats=5 if ns.quick else 15, large=not ns.quick, extras=not ns.quick)
+    out = {} if ns.viscous_only else run(repeats=5 if ns.quick else 15, large=not ns.quick,
+                                         extras=not ns.quick)
+    if ns.viscous or ns.viscous_only:
+        out["viscous"] = run_viscous()
     if ns.json:
         Path(ns.json).write_text(json.dumps(out, indent=1) + "\n", encoding="utf-8")
     return 0

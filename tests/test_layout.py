@@ -3,8 +3,8 @@
 Every module's imports are read with :mod:`ast` -- at the top and inside functions -- and each
 import of a panelflow module must go to the same stage or an earlier one:
 
-    top-level modules (errors, files, version) -> geometry -> flow -> conditions -> analysis
-    -> loads -> output -> study -> cli
+    top-level modules (errors, files, version) -> geometry -> flow -> viscous -> conditions
+    -> analysis -> loads -> output -> study -> cli
 
 The package root (``__init__``, ``__main__``) re-exports and may import anything.
 """
@@ -17,7 +17,8 @@ from pathlib import Path
 import pytest
 
 PACKAGE = Path(__file__).resolve().parent.parent / "panelflow"
-STAGES = ("", "geometry", "flow", "conditions", "analysis", "loads", "output", "study", "cli")
+STAGES = ("", "geometry", "flow", "viscous", "conditions", "analysis", "loads", "output", "study",
+          "cli")
 ROOT_FILES = {"__init__.py", "__main__.py"}
 
 

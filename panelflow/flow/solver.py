@@ -53,6 +53,10 @@ class System:
     condition : float
         Smallest over largest LU pivot magnitude (replaced by the 1-norm reciprocal condition
         estimate when that ratio is below 1e-10), for diagnostics.
+    lu : tuple or None
+        The LU factors and pivots of the matrix (``scipy.linalg.lu_factor`` output), kept so that
+        further right-hand sides (the boundary layer's transpiration sources) are solved without
+        factorising again.
     """
 
     panels: Panels
@@ -60,6 +64,7 @@ class System:
     base_factor: np.ndarray = field(repr=False)
     condition: float
     image: object = field(default=None, repr=False)
+    lu: tuple | None = field(default=None, repr=False, compare=False)
 
     def gamma(self, alpha_deg) -> np.ndarray:
         """Nodal vorticity (= tangential surface speed for unit freestream), shape (n_alpha, n_nodes)."""
@@ -313,4 +318,4 @@ def factorise(panels: Panels) -> System:
     unit = lu_solve(lu, rhs)
     if not np.all(np.isfinite(unit)):
         raise SolveError("panel system gave non-finite strengths: check the geometry")
-    return System(panels, unit, base_factor, rcond)
+    return System(panels, unit, base_factor, rcond, lu=lu)
