@@ -671,7 +671,8 @@ def load_run(request, tmp_path_factory):
 
 def test_loads_files_and_report(load_run):
     _, folder, out, err = load_run
-    assert files_in(folder) == ["loads.csv", "loads.inp", "loads.json", "loads.loads.csv"]
+    assert files_in(folder) == ["loads.about.json", "loads.csv", "loads.inp", "loads.json",
+                                "loads.loads.about.json", "loads.loads.csv"]
     for name in files_in(folder):
         assert f"wrote {folder / name}" in err
     assert out.startswith("equilibrium check")
