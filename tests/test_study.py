@@ -277,8 +277,9 @@ def test_run_writes_everything_and_a_manifest(first_run):
     folder = case_dir / "study_results"
     assert report.folder == folder
     names = sorted(p.name for p in report.written)
-    assert names == sorted(["polars.csv", "polars.json", "polars.png", "cp.png", "field.csv",
-                            "loads.json", MANIFEST_NAME])
+    assert names == sorted(["polars.csv", "polars.about.json", "polars.json", "polars.png",
+                            "cp.png", "field.csv", "field.about.json", "loads.json",
+                            MANIFEST_NAME])
     assert report.written[-1].name == MANIFEST_NAME
     summary = report.summary()
     assert summary.startswith("solved 3 sections x 3 angles: 9 table rows\n")
