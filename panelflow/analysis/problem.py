@@ -24,7 +24,7 @@ from dataclasses import dataclass, field, fields, replace
 import numpy as np
 
 from panelflow.conditions.compressibility import KARMAN_TSIEN, RULES, check_mach
-from panelflow.conditions.fluids import UNITS, Fluid, get_fluid, user_fluid
+from panelflow.conditions.fluids import UNITS, Fluid, make_fluid, user_fluid
 from panelflow.errors import InputError
 from panelflow.flow.images import MAX_DISTANCE_CHORDS, Boundary
 from panelflow.geometry.outline import Outline
@@ -138,6 +138,12 @@ class OperatingPoint:
         A preset name (``"air"``, ``"fresh-water"``, ``"sea-water"``) or a
         :class:`~panelflow.conditions.fluids.Fluid`; ``density`` instead gives a fluid known by its
         density only.
+    temperature, salinity, altitude : float or None
+        With a preset name: the fluid's temperature (°C), absolute salinity (g/kg, sea water)
+        and the altitude of the air or of the water surface (m); the preset's properties are
+        computed from the published standards there
+        (:func:`~panelflow.conditions.fluids.make_fluid`). Defaults: 15 °C water, 35 g/kg sea
+        water, the standard atmosphere at sea level.
     speed : float or None
         Freestream speed in m/s (cavitation number and margin, dimensional loads).
     depth : float or None
@@ -162,6 +168,9 @@ class OperatingPoint:
     unit: str | None = None
     chord: float | None = None
     plane: Boundary | None = None
+    temperature: float | None = None
+    salinity: float | None = None
+    altitude: float | None = None
 
     def __post_init__(self):
         alpha = np.atleast_1d(np.asarray(self.alpha_deg, dtype=float)).ravel() \
@@ -200,8 +209,13 @@ class OperatingPoint:
     def _check_fluid(self) -> None:
         if self.fluid is not None and self.density is not None:
             raise InputError("give either a fluid or a density, not both")
+        state = {k: getattr(self, k) for k in ("temperature", "salinity", "altitude")
+                 if getattr(self, k) is not None}
+        if state and not isinstance(self.fluid, str):
+            raise InputError(f"the {' and '.join(state)} set a preset fluid's properties: give "
+                             "the fluid by name (air, fresh-water or sea-water)")
         if isinstance(self.fluid, str):
-            object.__setattr__(self, "fluid", get_fluid(self.fluid))
+            object.__setattr__(self, "fluid", make_fluid(self.fluid, **state))
         elif self.density is not None:
             object.__setattr__(self, "fluid", user_fluid(self.density))
         elif self.fluid is not None and not isinstance(self.fluid, Fluid):
@@ -242,6 +256,10 @@ class OperatingPoint:
         if self.fluid is not None:
             out["fluid"] = self.fluid.name
             out["density_kg_m3"] = self.fluid.density
+            out["fluid_source"] = self.fluid.source
+        for key in ("temperature", "salinity", "altitude"):
+            if getattr(self, key) is not None:
+                out[key] = getattr(self, key)
         for key in ("speed", "depth", "unit", "chord"):
             if getattr(self, key) is not None:
                 out[key] = getattr(self, key)
@@ -364,6 +382,7 @@ def _refusals(op: OperatingPoint, output: str) -> list:
         out.append("loads need the fluid (or its density) and the speed")
     if output in ("solve", "compare", "field", "figures") and op.depth is None and (
             op.fluid is not None or op.speed is not None):
+        # (temperature, salinity and altitude need a fluid, so they are refused with it)
         out.append("a fluid and a speed serve the cavitation check here: give the running depth "
                    "too (loads take them without)")
     if output in ("solve", "compare", "field", "figures") and (op.unit is not None

@@ -25,7 +25,8 @@ NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": Fa
                    "--static-pressure": False, "--window": False, "--mach": False,
                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False,
                    "--resolution": False, "--flap-gap": False, "--flap-radius": False,
-                   "--node-tolerance": False, "--smooth-within": False}
+                   "--node-tolerance": False, "--smooth-within": False,
+                   "--temperature": False, "--salinity": False, "--altitude": False}
 
 
 def join_numeric_values(argv):
@@ -102,7 +103,18 @@ def add_condition_options(g, angles_help: str) -> None:
     g.add_argument("--mach-rule", default="karman-tsien",
                    choices=("karman-tsien", "prandtl-glauert", "laitone"),
                    help="compressibility correction (default karman-tsien)")
-    g.add_argument("--fluid", metavar="NAME", help="air, fresh-water or sea-water")
+    g.add_argument("--fluid", metavar="NAME",
+                   help="air, fresh-water or sea-water: properties from published standards "
+                   "(TEOS-10 density, IAPWS-IF97 vapour pressure, ISO 2533 atmosphere) at the "
+                   "state below")
+    g.add_argument("--temperature", type=float, metavar="DEGC",
+                   help="the fluid's temperature in degrees Celsius (default: water 15, air "
+                   "the standard atmosphere's at the altitude)")
+    g.add_argument("--salinity", type=float, metavar="G_PER_KG",
+                   help="sea water's absolute salinity in g/kg (default 35)")
+    g.add_argument("--altitude", type=float, metavar="METRES",
+                   help="altitude of the air, or of the water surface (its ambient pressure), "
+                   "in metres above sea level (default 0)")
     g.add_argument("--density", type=float, metavar="RHO",
                    help="fluid density in kg/m^3 (instead of --fluid)")
     g.add_argument("--speed", type=float, metavar="V", help="freestream speed in m/s")
@@ -138,7 +150,9 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
         plane = Boundary.free_surface(ns.free_surface)
     return OperatingPoint(alpha_deg=alpha, target_cl=ns.cl, mach=ns.mach, mach_rule=ns.mach_rule,
                           fluid=ns.fluid, density=ns.density, speed=ns.speed, depth=ns.depth,
-                          unit=ns.unit, chord=ns.chord, plane=plane)
+                          unit=ns.unit, chord=ns.chord, plane=plane,
+                          temperature=ns.temperature, salinity=ns.salinity,
+                          altitude=ns.altitude)
 
 
 def flap_of(ns) -> Flap | None:

@@ -406,7 +406,7 @@ def compressibility_table(c) -> str:
     return "\n".join(lines) + "\n"
 
 
-def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
+def cavitation_table(v, alpha_deg, depth, fluid, speed, source: str = "") -> str:
     """Cavitation inception check at a running depth (``solve --depth``)."""
     n = len(alpha_deg)
     lines = ["", f"cavitation at {depth:g} m depth in {fluid}"
@@ -424,6 +424,8 @@ def cavitation_table(v, alpha_deg, depth, fluid, speed) -> str:
     lines += text_table(cols)
     lines.append("inception speed: the freestream speed at which the suction peak reaches the "
                  "vapour pressure at this depth; margin: cavitation number plus the lowest Cp")
+    if source:
+        lines.append(f"fluid properties: {source}")
     return "\n".join(lines) + "\n"
 
 
@@ -460,7 +462,7 @@ def _cavitation_section(result) -> str:
         return ""
     op = result.operating
     return cavitation_table(result.cavitation, result.alpha_deg, op.depth, op.fluid.name,
-                            op.speed)
+                            op.speed, op.fluid.source)
 
 
 @add_solve_section

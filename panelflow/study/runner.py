@@ -908,14 +908,15 @@ def _fields(case, folder, overwrite) -> list:
 
 
 def _loads(case, folder, overwrite) -> list:
-    from panelflow.conditions.fluids import Conditions, resolve_fluid
+    from panelflow.conditions.fluids import Conditions, make_fluid, resolve_fluid
     from panelflow.loads.section import section_loads
     from panelflow.output.load_files import write_loads
 
     written = []
     for f in case.outputs.loads:
         task = _task(case, f.section)
-        fluid = resolve_fluid(f.fluid, f.density)
+        fluid = (make_fluid(f.fluid, **dict(f.fluid_state)) if f.fluid is not None
+                 else resolve_fluid(None, f.density))
         conditions = Conditions(fluid, f.speed, unit=f.unit, chord=f.chord, span=f.span)
         result = solve_task(task, _angles(case, f.section, f.alpha))
         loads = section_loads(result, conditions, about=f.about)
