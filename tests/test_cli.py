@@ -378,7 +378,8 @@ def test_section_refuses_to_overwrite(tmp_path, capsys, monkeypatch):
     assert Path("f.dat").read_bytes() == before
     code, out, err = run(capsys, "section", "naca0012", "-o", "f.dat", "--force")
     assert code == 0, err
-    assert Path("f.dat").read_text().startswith("naca0012\n")  # title line: the new spec
+    # the new spec's name in every row of panelflow's own layout
+    assert Path("f.dat").read_text().startswith("body,point,x,y\nnaca0012,1,")
 
 
 # ---------------------------------------------------------------------------------- entry points

@@ -43,7 +43,7 @@ MAX_ANGLES = 100_000
 MAX_PLANE_ANGLES = 2000
 MAX_ABS_ALPHA_DEG = 90.0
 
-__all__ = ["Flap", "OperatingPoint", "Problem", "check_output", "OUTPUTS", "DEFAULT_PANELS",
+__all__ = ["Flap", "OperatingPoint", "Problem", "check_output", "outline_unit", "OUTPUTS", "DEFAULT_PANELS",
            "MIN_PANELS", "MAX_PANELS_PER_BODY", "MAX_PANELS_TOTAL", "MAX_ANGLES",
            "MAX_PLANE_ANGLES"]
 
@@ -340,12 +340,23 @@ class Problem:
         object.__setattr__(self, "error_estimate", bool(self.error_estimate))
         if not self.label:
             object.__setattr__(self, "label", ", ".join(b.name for b in bodies))
+        file_unit = outline_unit(bodies)
+        op_unit = self.operating.unit
+        if file_unit is not None and op_unit is not None and op_unit != file_unit:
+            raise InputError(f"length unit {op_unit}: the outline file's column header says "
+                             f"{file_unit}; leave the unit out or give {file_unit}")
         plane = self.operating.plane
         if plane is not None and plane.distance > MAX_DISTANCE_CHORDS * bodies[0].chord:
             raise InputError(
                 f"{plane.label} {plane.distance:g} away is more than {MAX_DISTANCE_CHORDS:g} "
                 "chords from the bodies: its effect on lift is below 0.04 % there and the image "
                 "terms lose precision; solve without it")
+
+    @property
+    def length_unit(self) -> str | None:
+        """The outline's length unit: the operating point's, else the one the outline files'
+        column headers name (None: neither; the loads then take metres)."""
+        return self.operating.unit or outline_unit(self.bodies)
 
     def with_error_estimate(self, on: bool) -> Problem:
         """The same problem with the half-panel error estimate switched on or off."""
@@ -366,6 +377,22 @@ class Problem:
             out["smoothing"] = self.smoothing
         out.update(self.operating.record())
         return out
+
+
+def outline_unit(bodies) -> str | None:
+    """The length unit the bodies' files name in their column headers (None when none does).
+
+    Raises
+    ------
+    InputError
+        When two bodies name different units.
+    """
+    units = {b.unit: b.name for b in bodies if getattr(b, "unit", None)}
+    if len(units) > 1:
+        raise InputError("the outlines are in different units ("
+                         + ", ".join(f"{n}: {u}" for u, n in units.items())
+                         + "); give them in one unit")
+    return next(iter(units), None)
 
 
 def _refusals(op: OperatingPoint, output: str) -> list:

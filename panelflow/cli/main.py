@@ -187,7 +187,8 @@ def _cmd_loads(ns) -> int:
         raise InputError("give the load file(s) with -o FILE (.json, .csv, .vtu, .inp)")
     if ns.absolute and ns.static_pressure is not None:
         raise InputError("give either --absolute or --static-pressure, not both")
-    scale = {"unit": operating.unit, "chord": operating.chord, "span": ns.span}
+    scale = {"unit": problem.length_unit if operating.chord is None else None,
+             "chord": operating.chord, "span": ns.span}
     fluid, speed = operating.fluid, operating.speed
     conditions = (Conditions.absolute(fluid, speed, **scale) if ns.absolute else
                   Conditions(fluid, speed, static_pressure=ns.static_pressure, **scale))
@@ -205,6 +206,7 @@ def _cmd_loads(ns) -> int:
         sys.stdout.write(f"angle of attack for cl = {operating.target_cl:g}: "
                          f"{result.alpha_deg[0]:.4f} deg\n")
     sys.stdout.write(equilibrium_text(loads))
+    sys.stdout.write("".join(f"{n}\n" for n in loads.notes if n.startswith("warning: ")))
     sys.stdout.write("".join(f"caution: {line}\n" for line in loads.cautions))
     _wrote(written)
     return 0

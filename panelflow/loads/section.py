@@ -651,6 +651,9 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
              f"error; the loads carry the pressure lift so that they add up, from {cp.note}."]
     cav_caution, cav_note = _cavitation(float(np.nanmin(cp.node[i])), conditions, q,
                                         result.cavitation)
+    size = size_warning(chord, conditions.describe_scale(result.chord))
+    if size:
+        notes.append(size)
     loads = Loads(conditions, alpha, scale, chord, q, ref, about_m, bodies, lift, drag,
                   float(moments[0]), moments[1:], cl_c * fscale, cl_p, float(cp.cd[i]),
                   float(cp.cm[i]), cl_c, Equilibrium(checks), LOAD_CAUTIONS + cav_caution,
@@ -660,6 +663,23 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
         tol = None if node_tolerance is None else node_tolerance * scale
         loads = with_transfer(loads, transfer_to_nodes(loads, nodes, tol, moment_tolerance))
     return loads
+
+
+# Chords outside this range (metres) are unlikely for the sections panelflow serves, from a
+# model's fin to a turbine blade's root (common practice): a wrong length unit is more likely.
+PLAUSIBLE_CHORD_M = (0.005, 20.0)
+
+
+def size_warning(chord_m: float, scaling: str) -> str:
+    """A sentence when a chord of ``chord_m`` metres looks like a wrong length unit, else ""."""
+    lo, hi = PLAUSIBLE_CHORD_M
+    if lo <= chord_m <= hi:
+        return ""
+    guess = ("if the outline is in millimetres, give --unit mm (or a column header x_mm, y_mm)"
+             if chord_m > hi else "if the outline is not in metres, give its --unit, or the "
+             "chord in metres with --chord")
+    return (f"warning: the main chord is {chord_m:.6g} m ({scaling}), outside the "
+            f"{lo:g} to {hi:g} m usual for foil and fairing sections: {guess}")
 
 
 def _percent(a, b) -> str:
@@ -937,7 +957,7 @@ def equilibrium_text(loads: Loads) -> str:
                      f"{c.from_coefficients:>17.10g}  {unit:<5}  {c.relative:.1e}")
     lines.append(f"  {'within tolerance' if eq.ok else 'NOT WITHIN TOLERANCE'}: largest "
                  f"relative difference {eq.max_relative:.1e}")
-    lines += [f"  {note}" for note in loads.notes]
+    lines += [f"  {note}" for note in loads.notes if not note.startswith("warning: ")]
     lines += [f"caution: {text}" for text in loads.cautions[len(LOAD_CAUTIONS):]]
     t = loads.transfer
     if t is not None:

@@ -917,8 +917,10 @@ def _loads(case, folder, overwrite) -> list:
         task = _task(case, f.section)
         fluid = (make_fluid(f.fluid, **dict(f.fluid_state)) if f.fluid is not None
                  else resolve_fluid(None, f.density))
-        conditions = Conditions(fluid, f.speed, unit=f.unit, chord=f.chord, span=f.span)
         result = solve_task(task, _angles(case, f.section, f.alpha))
+        unit = f.unit if f.unit is not None or f.chord is not None else \
+            result.problem.length_unit
+        conditions = Conditions(fluid, f.speed, unit=unit, chord=f.chord, span=f.span)
         loads = section_loads(result, conditions, about=f.about)
         written += write_loads(loads, folder / f.file, overwrite=overwrite)
     return written
