@@ -57,11 +57,20 @@ def _cmd_solve(ns) -> int:
 
     operating = checked_operating(ns, "solve")
     problem = problem_of(ns, load_bodies(ns.outlines), operating)
-    _guard(ns, [*(ns.output or []), ns.plot])
+    surfaces = ns.surface_pressures or []
+    _guard(ns, [*(ns.output or []), *surfaces, ns.plot])
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
+    if surfaces:
+        from panelflow.output.surface_files import check_surface_outputs
+
+        check_surface_outputs(surfaces, overwrite=ns.force)
     _check_figure(ns)
     result = _solve(problem)
     written = [write_result(result, path, overwrite=ns.force) for path in ns.output or []]
+    if surfaces:
+        from panelflow.output.surface_files import write_surface
+
+        written += [write_surface(result, path, overwrite=ns.force) for path in surfaces]
     if ns.plot:
         from panelflow.output.figures import surface_cp_figure
 
@@ -372,7 +381,12 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("outlines", nargs="+", metavar="OUTLINE", help=outline_help)
     s.add_argument("--json", action="store_true", help="print machine-readable JSON")
     s.add_argument("-o", "--output", action="append", metavar="FILE",
-                   help="also write the results (.json: everything; .csv: one row per angle)")
+                   help="also write the results (.json: everything; .csv: one row per angle, "
+                   "its notes in FILE.about.json)")
+    s.add_argument("--surface-pressures", action="append", metavar="FILE",
+                   help="write Cp at every panel node of every body and angle, one row each "
+                   "(.csv or .json): angle, body, point, x, y, x/c, arc length, Cp (and Cp "
+                   "at the Mach number)")
     s.add_argument("--plot", metavar="FIGURE",
                    help="surface Cp figure (.png, .svg or .pdf) at the first angle")
     s.set_defaults(func=_cmd_solve)
