@@ -182,8 +182,21 @@ def loads_record(loads: Loads) -> dict:
         "notes": list(loads.notes),
         "analysis": json_ready(loads.analysis),
         "transfer": transfer_record(loads),
+        "flap_hinge": hinge_record(loads),
         "bodies": bodies,
     }
+
+
+def hinge_record(loads: Loads) -> dict | None:
+    """The flap's hinge moment as plain data (None without a flap)."""
+    h = loads.hinge
+    if h is None:
+        return None
+    return {"kind": h.kind, "hinge_point": _pt(h.hinge_point), "moment": h.moment,
+            "coefficient": h.coefficient, "flap_chord": h.flap_chord,
+            "normal_force": h.normal_force, "nodes": h.nodes,
+            "convention": "moment nose-up about the hinge point (positive turns the trailing "
+                          "edge down); coefficient = moment / (q flap_chord^2 span)"}
 
 
 def header_lines(loads: Loads) -> list:
@@ -211,6 +224,12 @@ def header_lines(loads: Loads) -> list:
     lines.append(f"equilibrium check against coefficients x q c: largest relative difference "
                  f"{eq.max_relative:.1e} (tolerance {eq.tolerance:.0e}, "
                  f"{'passed' if eq.ok else 'FAILED'})")
+    h = loads.hinge
+    if h is not None:
+        lines.append(f"flap hinge moment {h.moment:.10g} {mu} nose-up about "
+                     f"({h.hinge_point[0]:.8g}, {h.hinge_point[1]:.8g}) m "
+                     f"({'deflected part' if h.kind == 'plain' else 'flap body'}); coefficient "
+                     f"{h.coefficient:.6g} per q c_f^2, flap chord {h.flap_chord:.8g} m")
     t = loads.transfer
     if t is not None:
         lines.append(f"loads moved onto {t.n_nodes} structural nodes from {t.source}: force kept "
