@@ -38,10 +38,31 @@ def _wrote(paths) -> None:
 
 
 def _check_figure(ns) -> None:
-    if ns.plot:
-        from panelflow.output.figures import check_figure_path
+    from panelflow.output.figures import check_figure_path
 
-        check_figure_path(ns.plot, ns.force)
+    for path in (ns.plot, getattr(ns, "layer_plot", None), getattr(ns, "drag_plot", None)):
+        if path:
+            check_figure_path(path, ns.force)
+    if (getattr(ns, "layer_plot", None) or getattr(ns, "drag_plot", None)) and not (
+            ns.reynolds or ns.viscous):
+        raise InputError("--layer-plot and --drag-plot draw the viscous analysis: give "
+                         "--reynolds (or --viscous)")
+
+
+def _viscous_figures(ns, results) -> list:
+    """The boundary-layer figure (first angle of the first result) and the drag polar."""
+    written = []
+    if getattr(ns, "layer_plot", None):
+        from panelflow.output.viscous_figures import boundary_layer_figure
+
+        written.append(boundary_layer_figure(results[0], ns.layer_plot,
+                                             float(results[0].alpha_deg[0]),
+                                             overwrite=ns.force))
+    if getattr(ns, "drag_plot", None):
+        from panelflow.output.viscous_figures import drag_polar_figure
+
+        written.append(drag_polar_figure(results, ns.drag_plot, overwrite=ns.force))
+    return written
 
 
 def _guard(ns, outputs) -> None:
@@ -57,7 +78,7 @@ def _cmd_solve(ns) -> int:
 
     operating = checked_operating(ns, "solve")
     problem = problem_of(ns, load_bodies(ns.outlines), operating)
-    _guard(ns, [*(ns.output or []), ns.plot])
+    _guard(ns, [*(ns.output or []), ns.plot, ns.layer_plot, ns.drag_plot])
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
     _check_figure(ns)
     result = _solve(problem)
@@ -67,6 +88,7 @@ def _cmd_solve(ns) -> int:
 
         written.append(surface_cp_figure(result, ns.plot, float(result.alpha_deg[0]),
                                          overwrite=ns.force))
+    written += _viscous_figures(ns, [result])
     if ns.json:
         sys.stdout.write(analysis_json(result))
     else:
@@ -128,7 +150,7 @@ def _cmd_compare(ns) -> int:
     operating = checked_operating(ns, "compare")
     cases = [load_bodies([arg]) for arg in expand_arguments(ns.outlines)]
     problems = [problem_of(ns, bodies, operating) for bodies in cases]
-    _guard(ns, [*(ns.output or []), ns.plot])
+    _guard(ns, [*(ns.output or []), ns.plot, ns.layer_plot, ns.drag_plot])
     _check_figure(ns)
     if ns.output:
         from panelflow.output.tables import check_table_outputs
@@ -157,6 +179,7 @@ def _cmd_compare(ns) -> int:
 
             written.append(compare_cp_figure(results, labels, None, ns.plot,
                                              overwrite=ns.force))
+    written += _viscous_figures(ns, results)
     _wrote(written)
     return 0
 
@@ -342,6 +365,15 @@ def _add_reshape_parser(sub, common) -> None:
     e.set_defaults(func=_cmd_reshape)
 
 
+def _add_viscous_figures(parser) -> None:
+    parser.add_argument("--layer-plot", metavar="FIGURE",
+                        help="with the viscous analysis: Cp, skin friction and shape factor "
+                        "along the surface at the first angle, transition and separation marked")
+    parser.add_argument("--drag-plot", metavar="FIGURE",
+                        help="with the viscous analysis: drag polar (cl against cd) and cl/cd "
+                        "against the angle")
+
+
 def _solving_parent(angles_help: str) -> argparse.ArgumentParser:
     """Options of every command that solves: geometry, operating point, --force."""
     g = argparse.ArgumentParser(add_help=False)
@@ -373,6 +405,7 @@ def build_parser() -> argparse.ArgumentParser:
                    help="also write the results (.json: everything; .csv: one row per angle)")
     s.add_argument("--plot", metavar="FIGURE",
                    help="surface Cp figure (.png, .svg or .pdf) at the first angle")
+    _add_viscous_figures(s)
     s.set_defaults(func=_cmd_solve)
 
     f = sub.add_parser("field", parents=[common, _solving_parent(one)],
@@ -401,6 +434,7 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("-o", "--output", action="append", metavar="FILE",
                    help="table with one row per case and angle (.csv or .json)")
     m.add_argument("--json", action="store_true", help="print the table as JSON")
+    _add_viscous_figures(m)
     m.set_defaults(func=_cmd_compare)
 
     r = sub.add_parser("run", parents=[common],

@@ -121,3 +121,31 @@ def reynolds_number(speed: float, chord: float, kinematic_viscosity: float) -> f
         if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
             raise InputError(f"{name} must be a positive number, got {v!r}")
     return speed * chord / kinematic_viscosity
+
+
+# The fluid presets of panelflow.conditions.fluids, at the states their densities are given for:
+# fresh and sea water at 15 °C (sea water 35 g/kg), air at sea level in the standard atmosphere.
+PRESET_STATES = {"fresh-water": ("water", 15.0, 0.0), "sea-water": ("water", 15.0, 35.0),
+                 "air": ("air", 0.0, None)}
+
+
+def preset_kinematic_viscosity(name: str) -> tuple[float, str]:
+    """Kinematic viscosity of a fluid preset (m²/s) and the sentence saying where it comes from.
+
+    Raises
+    ------
+    InputError
+        For a fluid known only by its density (give the Reynolds number instead).
+    """
+    state = PRESET_STATES.get(name)
+    if state is None:
+        raise InputError(f"fluid {name!r} has no viscosity here: give the Reynolds number "
+                         "directly")
+    kind, a, b = state
+    if kind == "water":
+        nu = water_kinematic_viscosity(a, b)
+        what = ("fresh water" if not b else f"sea water of {b:g} g/kg") + f" at {a:g} °C"
+        return nu, f"{what}, Sharqawy, Lienhard & Zubair (2010): {nu:.4g} m²/s"
+    nu = air_kinematic_viscosity(a)
+    return nu, (f"ISO 2533 standard atmosphere at {a:g} m, Sutherland's law: "
+                f"{nu:.4g} m²/s")

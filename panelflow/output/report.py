@@ -122,7 +122,44 @@ def margins_text(result) -> str:
                                  op.speed)
     if result.plane is not None:
         text += plane_table(result)
+    if result.viscous is not None:
+        text += viscous_table(result)
     return text
+
+
+def _position(v: float) -> str:
+    return "-" if not math.isfinite(v) else f"{v:.3f}"
+
+
+def viscous_table(result) -> str:
+    """The viscous analysis per angle: lift, moment, drag and its parts, transition, separation."""
+    v = result.viscous
+    tr = v.transition
+    trips = [f"{side} trip at x/c {x:g}" for side, x in (("upper", tr.upper_trip),
+                                                        ("lower", tr.lower_trip)) if x is not None]
+    lines = ["", f"viscous analysis at Reynolds number {v.reynolds:.4g} ({v.reynolds_source}); "
+             f"transition at amplification factor {tr.critical_amplification:.3g}"
+             + (", " + ", ".join(trips) if trips else ""),
+             f"{'alpha':>7} {'lift':>8} {'moment':>9} {'drag':>8} {'friction':>8} {'form':>8} "
+             f"{'lift/drag':>9}  {'transition x/c':>15}  {'separation x/c':>15}",
+             f"{'':>7} {'cl':>8} {'cm':>9} {'cd':>8} {'cd':>8} {'cd':>8} {'':>9}  "
+             f"{'upper':>7} {'lower':>7}  {'upper':>7} {'lower':>7}"]
+    for a, r, late in zip(result.alpha_deg, v.results, v.after_failure):
+        if not r.converged:
+            lines.append(f"{a:7.2f}  not converged (residual {r.residual:.1e} after "
+                         f"{r.iterations} iterations): no numbers")
+            continue
+        tu = _position(r.transition_upper) + ("t" if r.transition_upper_forced else " ")
+        tl = _position(r.transition_lower) + ("t" if r.transition_lower_forced else " ")
+        lines.append(f"{a:7.2f} {r.cl:8.4f} {r.cm:9.5f} {r.cd:8.5f} {r.cd_friction:8.5f} "
+                     f"{r.cd_pressure:8.5f} {r.lift_to_drag:9.1f}  {tu:>7} {tl:>7}  "
+                     f"{_position(r.separation_upper):>7} {_position(r.separation_lower):>7}"
+                     + ("  (reached after an unconverged angle: check)" if late else ""))
+    lines.append("drag from the wake far downstream; friction: skin friction; form: the rest "
+                 "(pressure drag of the boundary layer's displacement); t: at a trip; "
+                 "separation: where the skin friction first turns negative (- none)")
+    lines.append(f"limits: {v.limits}")
+    return "\n".join(lines) + "\n"
 
 
 def _resolution_lines(rep) -> list[str]:
@@ -194,8 +231,35 @@ def compare_table(analyses, labels) -> str:
     lines.append("")
     lines.append("moments about each case's own quarter chord, nose-up positive; cp_min over all "
                  "bodies of the case")
+    lines += _viscous_ranking(analyses, labels)
     lines.append("caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _viscous_ranking(results, labels) -> list:
+    """With the viscous analysis: drag and lift-to-drag per case and angle, and with one angle per
+    case (a target lift) the cases ranked by lift-to-drag ratio."""
+    if not results or any(getattr(r, "viscous", None) is None for r in results):
+        return []
+    width = max(12, *(len(lb) for lb in labels))
+    lines = ["", f"viscous analysis: {'case':<{width}} {'alpha':>7} {'cl':>8} {'cd':>8} "
+             f"{'lift/drag':>9}  {'transition upper/lower x/c':>26}"]
+    for label, r in zip(labels, results):
+        for a, v in zip(r.alpha_deg, r.viscous.results):
+            if not v.converged:
+                lines.append(f"                  {label:<{width}} {a:7.2f}  not converged")
+                continue
+            lines.append(f"                  {label:<{width}} {a:7.2f} {v.cl:8.4f} {v.cd:8.5f} "
+                         f"{v.lift_to_drag:9.1f}  {_position(v.transition_upper):>12} "
+                         f"{_position(v.transition_lower):>13}")
+    target = results[0].operating.target_cl
+    if target is not None and all(len(r) == 1 for r in results):
+        ranked = sorted(((r.viscous.results[0].lift_to_drag, lab) for lab, r in
+                         zip(labels, results) if r.viscous.results[0].converged), reverse=True)
+        lines.append(f"ranked by lift-to-drag ratio at cl = {target:g}: "
+                     + "; ".join(f"{k + 1}. {lab} ({ld:.1f})" for k, (ld, lab) in
+                                 enumerate(ranked)))
+    return lines
 
 
 def field_summary(flow, analysis) -> str:
