@@ -118,6 +118,11 @@ def _cmd_field(ns) -> int:
     resolution = parse_numbers(ns.resolution, 2, "--resolution", int)
     window = parse_numbers(ns.window, 4, "--window") if ns.window else None
     points = read_points_csv(ns.points) if ns.points else None
+    from panelflow.flow.field import check_field_size
+
+    panels = sum(problem.panels or len(b.points) - 1 for b in problem.bodies)
+    check_field_size(len(points) if points is not None else resolution[0] * resolution[1],
+                     panels)  # before the solve: a field too large is refused at once
     result = _solve(problem.with_error_estimate(False))
     alpha = float(result.alpha_deg[0])
     if points is None:
