@@ -122,7 +122,8 @@ def _cmd_field(ns) -> int:
 
     panels = sum(problem.panels or len(b.points) - 1 for b in problem.bodies)
     check_field_size(len(points) if points is not None else resolution[0] * resolution[1],
-                     panels)  # before the solve: a field too large is refused at once
+                     panels, f"--points {ns.points}" if points is not None
+                     else f"--resolution {ns.resolution}")  # refused before the solve
     result = _solve(problem.with_error_estimate(False))
     alpha = float(result.alpha_deg[0])
     if points is None:

@@ -40,8 +40,10 @@ MAX_GRID_POINTS = 25_000_000
 MAX_FIELD_PAIRS = 2_000_000_000
 
 
-def check_field_size(n_points: int, n_panels: int) -> None:
+def check_field_size(n_points: int, n_panels: int, what: str = "") -> None:
     """Refuse a field of more than ``MAX_FIELD_PAIRS`` point-panel pairs, before any work.
+
+    ``what`` names the option or file the points come from, for the message.
 
     Raises
     ------
@@ -49,7 +51,8 @@ def check_field_size(n_points: int, n_panels: int) -> None:
     """
     pairs = int(n_points) * int(n_panels)
     if pairs > MAX_FIELD_PAIRS:
-        raise InputError(f"{n_points} field points x {n_panels} panels = {pairs:.3g} point-panel "
+        raise InputError(f"{what + ': ' if what else ''}{n_points} field points x {n_panels} "
+                         f"panels = {pairs:.3g} point-panel "
                          f"pairs, more than the {MAX_FIELD_PAIRS:.0e} a field may have (about a "
                          "minute's work): use fewer points or panels, or several windows")
 # Points evaluated together: the temporaries of one chunk (about 1 kB per point: masks, nearest
