@@ -263,14 +263,13 @@ def _moment_holds(lim, cm: float) -> bool:
 def _drag_figures(outline: Outline, obj: LeastDrag, panels: int, notes: list) -> list:
     from panelflow.analysis.inviscid import alpha_for_cl, build, default_reference
     from panelflow.design.drag import viscous_at_lift
-    from panelflow.viscous import Transition
 
     try:
         _, system = build([outline], panels)
         chord, quarter = default_reference([outline])
         a_inv = alpha_for_cl([outline], obj.cl, panels)
-        res, _ = viscous_at_lift(system, obj.cl, obj.reynolds,
-                                 Transition(obj.critical_amplification), a_inv, chord, quarter)
+        res, _ = viscous_at_lift(system, obj.cl, obj.reynolds, obj.transition(), a_inv, chord,
+                                 quarter)
     except PanelflowError as exc:
         res = None
         notes.append(f"viscous analysis failed: {exc}")

@@ -99,11 +99,9 @@ class DragAtLift:
     """
 
     def __init__(self, model: DesignModel, objective: LeastDrag):
-        from panelflow.viscous import Transition
-
         self.model = model
         self.objective = objective
-        self.transition = Transition(objective.critical_amplification)
+        self.transition = objective.transition()
         self.chord = ChordLine(np.array([0.0, 0.0]), np.array([1.0, 0.0]))
         self.failures = {"design point": 0, "perturbation": 0, "gradient component": 0}
         self.evaluations = 0

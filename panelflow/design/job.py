@@ -238,11 +238,15 @@ class LeastDrag:
         Reynolds number on the chord.
     critical_amplification : float
         Transition criterion of the e^N method (9 by default).
+    trip_upper, trip_lower : float or None
+        Forced transition (a trip strip) at this x/c.
     """
 
     cl: float
     reynolds: float
     critical_amplification: float = 9.0
+    trip_upper: float | None = None
+    trip_lower: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "cl", _number(self.cl, "design lift coefficient", -3.0, 3.0))
@@ -250,6 +254,16 @@ class LeastDrag:
         object.__setattr__(self, "critical_amplification",
                            _number(self.critical_amplification, "critical amplification", 1.0,
                                    20.0))
+        for key in ("trip_upper", "trip_lower"):
+            if getattr(self, key) is not None:
+                object.__setattr__(self, key, _number(getattr(self, key),
+                                                      key.replace("_", " "), 0.0, 1.0))
+
+    def transition(self):
+        """The transition settings of the viscous analysis."""
+        from panelflow.viscous import Transition
+
+        return Transition(self.critical_amplification, self.trip_upper, self.trip_lower)
 
     @property
     def design_cl(self):

@@ -71,6 +71,15 @@ class OptimisationRun:
         if not r.feasible:
             lines.append("the optimiser stopped WITHOUT meeting every constraint (see the "
                          "table)")
+        objective = [f for f in self.designed.figures if f.better]
+        if objective:
+            f = objective[0]
+            before = self.start[f.key].value
+            worse = f.value < before if f.better == "higher" else f.value > before
+            if worse:
+                lines.append(f"the result is WORSE than the start in {f.label} on the check "
+                             "(the shape functions do not represent the start closely "
+                             "enough: give more of them)")
         lines += [f"note: {n}" for n in r.notes]
         text = "\n".join(lines) + "\n"
         text += before_after_text(self.start, self.designed)

@@ -335,14 +335,18 @@ class SectionForm:
                                    exact=True)
 
     # ------------------------------------------------------------------ linear measures
-    def _u_of_x(self, x, upper: bool) -> np.ndarray:
-        end = self.ends[0] if upper else self.ends[1]
-        u = np.sqrt(np.clip(np.asarray(x, float) / end, 0.0, 1.0))
+    @staticmethod
+    def _u_of_x(x, upper: bool) -> np.ndarray:
+        # stations x/c pair the two surfaces at the same fraction of their own length, as the
+        # geometry measures do (geometry/measure.py: a slanted base's surfaces are stretched
+        # to the chord's end)
+        u = np.sqrt(np.clip(np.asarray(x, float), 0.0, 1.0))
         return u if upper else -u
 
     def thickness_linear(self, x) -> tuple[np.ndarray, np.ndarray]:
         """``(t0, T)`` with the thickness ``y_upper - y_lower`` at chord stations ``x`` equal to
-        ``t0 + T @ c``."""
+        ``t0 + T @ c`` (each surface at the same fraction of its length, as
+        :func:`panelflow.geometry.measure.decompose` pairs them)."""
         uu, ul = self._u_of_x(x, True), self._u_of_x(x, False)
         t0 = self.base(uu) - self.base(ul)
         return t0, self.basis.functions(uu) - self.basis.functions(ul)

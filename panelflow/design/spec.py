@@ -20,7 +20,8 @@ Top level
                     ``"angle"`` (default) or ``"lift"``, optionally containing ``cl``, with
                     ``checks`` angles across it inside the optimisation (default 5);
                     ``"least-drag"``: the least viscous drag at ``cl`` and ``reynolds``
-                    (``critical_amplification`` of the transition criterion, default 9).
+                    (``critical_amplification`` of the transition criterion, default 9;
+                    ``trip_upper``, ``trip_lower``: forced transition at these x/c).
 
 ``[conditions]``    ``depth`` (m), ``fluid`` (``sea-water`` or ``fresh-water``), ``speed``
                     (m/s; needed by ``widest-range``), ``margin`` (share of the cavitation
@@ -78,7 +79,8 @@ DESIGN_KEYS = {
     "top": ("title", "output", "section", "objective", "conditions", "constraints", "design",
             "outputs"),
     "section": ("file", "spec", "name"),
-    "objective": ("kind", "cl", "measure", "checks", "reynolds", "critical_amplification"),
+    "objective": ("kind", "cl", "measure", "checks", "reynolds", "critical_amplification",
+                  "trip_upper", "trip_lower"),
     "conditions": ("depth", "fluid", "speed", "margin"),
     "constraints": ("thickness", "keep_thickness", "area", "moment", "leading_edge_radius",
                     "trailing_edge_angle"),
@@ -92,7 +94,8 @@ DESIGN_KEYS = {
 # which keys belong to which objective (others are refused with the reason)
 _OBJECTIVE_KEYS = {"inception-speed": {"kind", "cl"},
                    "widest-range": {"kind", "cl", "measure", "checks"},
-                   "least-drag": {"kind", "cl", "reynolds", "critical_amplification"}}
+                   "least-drag": {"kind", "cl", "reynolds", "critical_amplification",
+                                  "trip_upper", "trip_lower"}}
 
 
 class _DesignChecker(_Checker):
@@ -261,7 +264,9 @@ def _objective(ck: _DesignChecker, doc: dict):
         re = ck.number(o["reynolds"], path + ("reynolds",), 1e4, 1e9)
         n = (ck.number(o["critical_amplification"], path + ("critical_amplification",), 1.0,
                        20.0) if "critical_amplification" in o else 9.0)
-        return LeastDrag(cl, re, n)
+        trips = [ck.number(o[k], path + (k,), 0.0, 1.0) if k in o else None
+                 for k in ("trip_upper", "trip_lower")]
+        return LeastDrag(cl, re, n, *trips)
     except InputError as exc:
         if str(exc).startswith(ck.name):
             raise

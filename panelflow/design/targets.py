@@ -188,45 +188,53 @@ def _smootherstep(t):
 
 
 def plateau_target(reference, side: str, level: float, x_from: float, x_to: float,
-                   recovery_to: float, name: str = "plateau") -> CpTarget:
-    """A flat Cp plateau on one surface followed by a smooth recovery.
+                   recovery_to: float, other=None, name: str = "plateau") -> CpTarget:
+    """A flat Cp plateau on one surface followed by a smooth recovery, the rest as it was.
 
-    From ``x_from`` to ``x_to`` the target is ``level``; from ``x_to`` to ``recovery_to`` it
-    blends into the reference Cp with a curve of zero slope and curvature at both ends
-    (``6t^5 - 15t^4 + 10t^3``). The reference is usually the start section's own Cp at the
-    design point, so beyond ``recovery_to`` (and before ``x_from``) nothing is asked to change.
+    On ``side`` the target runs from the nose: the reference Cp up to ``x_from / 2``, blending
+    into ``level`` by ``x_from``; ``level`` to ``x_to``; then back into the reference by
+    ``recovery_to``. Both blends are ``6t^5 - 15t^4 + 10t^3`` (zero slope and curvature at both
+    ends). With ``other`` the other surface keeps its reference Cp from the nose to
+    ``recovery_to``, so the design may change the nose and that surface too, but is asked to
+    keep their pressures. The reference is usually the start's own Cp at the design point;
+    beyond ``recovery_to`` nothing is asked to change.
 
     Parameters
     ----------
     reference : callable
-        ``reference(x)``: Cp of the surface at stations x (the start at the design point).
+        ``reference(x)``: Cp of ``side`` at stations x.
     side : {"upper", "lower"}
     level : float
         Plateau Cp (negative: suction).
     x_from, x_to, recovery_to : float
-        ``0 <= x_from < x_to < recovery_to <= 1``.
+        ``0 < x_from < x_to < recovery_to <= 1``.
+    other : callable, optional
+        ``other(x)``: Cp of the other surface.
     """
     if side not in SURFACES:
         raise InputError(f"plateau surface {side!r}: use upper or lower")
     a, b, c = float(x_from), float(x_to), float(recovery_to)
-    if not 0.0 <= a < b < c <= 1.0:
+    if not 0.0 < a < b < c <= 1.0:
         raise InputError(f"plateau from {a:g} to {b:g}, recovery to {c:g}: need "
-                         "0 <= from < to < recovery end <= 1")
+                         "0 < from < to < recovery end <= 1")
     if not np.isfinite(level) or level > 1.0:
         raise InputError(f"plateau level {level!r}: give a Cp of at most 1")
-    # stations dense at the corners: cosine spacing on each piece
-    k = _BUILT_IN_STATIONS // 2
+    # stations dense at the nose and the corners: cosine spacing on each piece
+    k = _BUILT_IN_STATIONS // 3
     s = 0.5 * (1.0 - np.cos(np.linspace(0.0, np.pi, k)))
-    x = np.unique(np.r_[a + (b - a) * s, b + (c - b) * s])
-    cp = np.full(len(x), float(level))
-    rec = x > b
-    t = (x[rec] - b) / (c - b)
-    cp[rec] = level + (np.asarray(reference(x[rec]), float) - level) * _smootherstep(t)
+    x = np.unique(np.r_[a * s, a + (b - a) * s, b + (c - b) * s])
+    ref = np.asarray(reference(x), float)
+    into = _smootherstep((x - 0.5 * a) / (0.5 * a))
+    out_of = _smootherstep((x - b) / (c - b))
+    plateau = level + (ref - level) * out_of
+    cp = ref + (plateau - ref) * into
     empty = np.zeros(0)
-    up = (x, cp) if side == "upper" else (empty, empty)
-    lo = (x, cp) if side == "lower" else (empty, empty)
+    mine = (x, cp)
+    theirs = (x, np.asarray(other(x), float)) if other is not None else (empty, empty)
+    up, lo = (mine, theirs) if side == "upper" else (theirs, mine)
     return CpTarget(name, *up, *lo, source=f"plateau on the {side} surface at Cp {level:g} from "
-                    f"x/c {a:g} to {b:g}, recovery to {c:g}")
+                    f"x/c {a:g} to {b:g}, recovery to {c:g}"
+                    + (", the other surface kept" if other is not None else ""))
 
 
 # A target starting this close to the nose on both surfaces runs round it: one segment.
