@@ -56,6 +56,13 @@ def test_linear_area_matches_the_shoelace_area(fitted):
     assert abs(form.area() - signed_area(pts)) < 2e-6
 
 
+def test_linear_area_matches_the_measured_area(fitted):
+    _, form, written = fitted
+    # 1e-7 chords^2: the measure integrates its spline through the written points (measured
+    # below 1e-9 here); design/check.py counts an area limit as held within 1e-6
+    assert abs(form.area() - measure(written).area) < 1e-7
+
+
 def test_nose_radius_and_trailing_edge_angle_match_the_measures(fitted):
     name, form, written = fitted
     m = measure(written)

@@ -33,7 +33,7 @@ RANGE_STEP_DEG = 0.02
 _RANGE_SPAN_DEG = 15.0
 # How far a measured figure may pass its limit and still count as holding: the measure's own
 # uncertainty on a written section (12 significant digits, 801 points; its spline's error,
-# tests/test_measure.py and tests/test_design_check.py), never more. The optimiser keeps a
+# tests/test_measure.py and tests/test_design_shape.py), never more. The optimiser keeps a
 # little more than this inside each limit (panelflow.design.objectives.ALLOWANCE).
 TOLERANCE = {"thickness": 1e-6, "area": 1e-6, "radius": 1e-5, "angle": 0.01, "moment": 0.0}
 
