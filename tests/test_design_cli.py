@@ -89,6 +89,15 @@ def test_constraint_and_output_errors(tmp_path, block, message):
         load_design_case(_case(tmp_path, BASE + block))
 
 
+def test_a_start_file_changed_after_reading_is_refused(tmp_path):
+    foil = tmp_path / "foil.dat"
+    foil.write_text(FOIL.read_text())
+    case = load_design_case(_case(tmp_path, BASE.replace(FOIL.as_posix(), foil.as_posix())))
+    foil.write_text(FOIL.read_text() + "\n")
+    with pytest.raises(InputError, match="changed since the case was read"):
+        case.start()
+
+
 def test_missing_section_file(tmp_path):
     text = BASE.replace(FOIL.as_posix(), "nowhere.dat")
     with pytest.raises(InputError, match="line 3: section.file: nowhere.dat: no such file"):

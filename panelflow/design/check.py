@@ -149,7 +149,9 @@ def _geometry_figures(outline: Outline, job: Job) -> list:
 
 
 def _free_range(result, allowed: float, inside_alpha):
-    """(lo, hi) in degrees of the cavitation-free interval, from a result on an angle grid."""
+    """(lo, hi) in degrees of the cavitation-free interval (the one containing
+    ``inside_alpha`` when given, else the widest), from a result on an angle grid; None when
+    there is none."""
     alpha = np.asarray(result.alpha_deg, float)
     suction = -np.asarray(result.cavitation.section_cp_min, float)
     free = suction <= allowed
@@ -212,6 +214,12 @@ def job_check(outline: Outline, job: Job, panels: int, label: str | None = None)
                             speed=cav.speed)
         res = solve(Problem(bodies, op, panels=panels, error_estimate=False))
         rng = _free_range(res, allowed, inside)
+        if inside is not None:
+            contains = rng is not None
+            figures.append(Figure("contains_cl", f"free of cavitation at cl {obj.cl:g}", "",
+                                  float(contains), "yes", contains))
+            if rng is None:  # report the widest free range there is, all the same
+                rng = _free_range(res, allowed, None)
         if rng is None:
             figures.append(Figure("free_range", "cavitation-free range", "deg", float("nan"),
                                   better="higher", note="cavitates at every angle"))

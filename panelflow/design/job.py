@@ -33,7 +33,8 @@ from panelflow.conditions.fluids import get_fluid
 from panelflow.design.inverse import ThicknessLimit
 from panelflow.errors import InputError
 
-__all__ = ["Limits", "Cavitation", "InceptionSpeed", "WidestRange", "LeastDrag", "MomentLimit", "Job",
+__all__ = ["Limits", "Cavitation", "InceptionSpeed", "WidestRange", "LeastDrag", "MomentLimit",
+           "Job",
            "DEFAULT_OPTIMISATION_PANELS", "DEFAULT_OPTIMISATION_FUNCTIONS"]
 
 DEFAULT_OPTIMISATION_PANELS = 200
@@ -148,7 +149,8 @@ class Cavitation:
                              "fresh-water)")
         object.__setattr__(self, "fluid", fluid.name)
         if self.speed is not None:
-            object.__setattr__(self, "speed", _number(self.speed, "speed (m/s)", 0.0, low_open=True))
+            object.__setattr__(self, "speed",
+                               _number(self.speed, "speed (m/s)", 0.0, low_open=True))
         object.__setattr__(self, "margin", _number(self.margin, "cavitation margin", 0.0, 0.9))
 
     def sigma(self) -> float:

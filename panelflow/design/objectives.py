@@ -40,7 +40,11 @@ SCALES = {"thickness": 100.0, "area": 100.0, "radius": 1000.0, "angle": 0.1, "mo
 # moment, than the difference between the 200-panel design model and the 400-panel check
 # (measured 1.9e-4 on the demo's optimised section, whose cm error estimate at 200 panels is
 # 6e-4).
-ALLOWANCE = {"thickness": 2e-6, "area": 2e-6, "radius": 2e-5, "angle": 0.02, "moment": 5e-4}
+# The allowed suction of a cavitation-free range is lowered by a share ("suction"): the lowest
+# Cp of the design model and of the check differ by up to 0.6 % on the demo sections (120 to
+# 400 panels, measured), and the range's ends sit exactly on the limit.
+ALLOWANCE = {"thickness": 2e-6, "area": 2e-6, "radius": 2e-5, "angle": 0.02, "moment": 5e-4,
+             "suction": 0.01}
 _MIN_RANGE_DEG = 0.2
 
 
@@ -105,7 +109,8 @@ class Formulation:
             raise InputError("the drag objective needs the viscous drag evaluator")
         self.allowed = None
         if job.cavitation is not None and job.cavitation.speed is not None:
-            self.allowed = job.cavitation.sigma() * (1.0 - job.cavitation.margin)
+            self.allowed = (job.cavitation.sigma() * (1.0 - job.cavitation.margin)
+                            * (1.0 - ALLOWANCE["suction"]))
         # node rows that carry a pressure (both trailing-edge nodes left out: a stagnation
         # corner or a cusp's repeated point, never a suction peak)
         self.rows = np.arange(1, len(model.u) - 1)

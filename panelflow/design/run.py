@@ -19,7 +19,6 @@ import numpy as np
 
 from panelflow.design.check import Check, inverse_check, job_check
 from panelflow.design.inverse import InverseResult, inverse_design
-from panelflow.design.job import InceptionSpeed, WidestRange
 from panelflow.design.optimise import OptimisationResult, optimise
 from panelflow.design.report import (DESIGN_CAUTION, before_after_rows, before_after_text,
                                      write_before_after)

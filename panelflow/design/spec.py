@@ -131,6 +131,8 @@ class DesignCase:
     job : Job
     outputs : dict
         ``section``, ``table``, ``cp_figure``, ``polar_figure`` (file names or None).
+    source_sha256 : str or None
+        SHA-256 of the start's file when the case was read.
     """
 
     path: Path
@@ -142,11 +144,15 @@ class DesignCase:
     name: str
     job: Job
     outputs: dict
+    source_sha256: str | None = None
 
     def start(self):
         """The start outline (read again, checked against the hash taken at parse time)."""
         from panelflow.geometry.readers import load_outlines
 
+        if self.is_file and self.source_sha256 is not None \
+                and file_sha256(self.source) != self.source_sha256:
+            raise InputError(f"{self.source}: the file changed since the case was read")
         outlines = load_outlines(self.source)
         if len(outlines) != 1:
             raise InputError(f"{self.source}: the start section must be one body, found "
@@ -460,7 +466,8 @@ def parse_design_case(text: str, path) -> DesignCase:
         raise ck.error((), str(exc)) from None
     outputs = _outputs(ck, doc, stem)
     return DesignCase(p, hashlib.sha256(text.encode("utf-8")).hexdigest(), title, output,
-                      source, key == "file", sname, job, outputs)
+                      source, key == "file", sname, job, outputs,
+                      file_sha256(source) if key == "file" else None)
 
 
 def load_design_case(path) -> DesignCase:
@@ -474,4 +481,4 @@ def load_design_case(path) -> DesignCase:
             from None
     case = parse_design_case(text, p)
     return DesignCase(case.path, file_sha256(p), case.title, case.output, case.source,
-                      case.is_file, case.name, case.job, case.outputs)
+                      case.is_file, case.name, case.job, case.outputs, case.source_sha256)
