@@ -283,3 +283,28 @@ def test_starts_on_a_dask_cluster_give_the_same_bits():
             there = optimise(foil, job, client.get_executor())
     for a, b in zip(here.starts, there.starts):
         assert np.array_equal(a.coefficients, b.coefficients)
+
+
+@pytest.mark.slow
+def test_check_drag_comes_from_the_one_entry_point():
+    # the independent check's drag figure is the viscous analysis at the angle of the design
+    # lift; reference: the same viscous library called directly at the angle the check reports
+    # (tripped at 5 % chord on both sides, where the drag is smooth)
+    from panelflow.analysis.inviscid import analyse
+    from panelflow.design.check import job_check
+    from panelflow.viscous import Transition, solve
+
+    foil = pf.load_outlines("naca2412-closed")[0]
+    job = Job(LeastDrag(0.4, 3e6, trip_upper=0.05, trip_lower=0.05), functions=4, panels=100)
+    check = job_check(foil, job, panels=200)
+    fig = {f.key: f for f in check.figures}
+    assert np.isfinite(fig["cd"].value)
+    a = fig["alpha"].value
+    fine = analyse([foil], [a], n_panels=200, error_estimate=False).fine
+    r = solve(fine.system, a, 3e6, Transition(9.0, upper_trip=0.05, lower_trip=0.05),
+              chord_line=fine.chord_line, reference_point=fine.reference_point)
+    assert r.converged
+    # 1e-6 in cd: the same system and angle; only the Newton iteration's stopping differs
+    assert fig["cd"].value == pytest.approx(r.cd, abs=1e-6)
+    # the angle was found for the viscous lift: met to the secant iteration's tolerance
+    assert r.cl == pytest.approx(0.4, abs=1e-3)

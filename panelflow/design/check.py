@@ -7,9 +7,9 @@ solved through the one entry point (:func:`panelflow.analysis.solve.solve` on a
 :mod:`panelflow.geometry.measure`. Every figure a design reports comes from here, for the start
 and for the result alike, so a before/after table compares like with like.
 
-Drag is the one exception to the entry point: the viscous analysis is not yet part of the
-:class:`Problem` description, so it is called directly (:func:`panelflow.viscous.solve`) on the
-system the analysis builds from the same file and panel count.
+Drag comes the same way: the viscous analysis is part of the description (the Reynolds number
+and transition settings of :class:`OperatingPoint`), at the angle where the viscous lift is the
+design lift.
 """
 
 from __future__ import annotations
@@ -269,17 +269,15 @@ def _moment_holds(lim, cm: float) -> bool:
 
 
 def _drag_figures(outline: Outline, obj: LeastDrag, panels: int, notes: list) -> list:
-    from panelflow.analysis.inviscid import alpha_for_cl, build, default_reference
-    from panelflow.design.drag import viscous_at_lift
-
+    op = OperatingPoint(target_cl=obj.cl, reynolds=obj.reynolds,
+                        critical_amplification=obj.critical_amplification,
+                        trip_upper=obj.trip_upper, trip_lower=obj.trip_lower)
+    res = None
     try:
-        _, system = build([outline], panels)
-        chord, quarter = default_reference([outline])
-        a_inv = alpha_for_cl([outline], obj.cl, panels)
-        res, _ = viscous_at_lift(system, obj.cl, obj.reynolds, obj.transition(), a_inv, chord,
-                                 quarter)
+        # the angle search itself refuses a target it cannot converge at
+        part = solve(Problem([outline], op, panels=panels, error_estimate=False)).viscous
+        res = part.results[0] if part.converged[0] else None
     except PanelflowError as exc:
-        res = None
         notes.append(f"viscous analysis failed: {exc}")
     if res is None:
         notes.append("the viscous analysis did not converge at the design lift: no drag figure")
