@@ -26,6 +26,14 @@ D      200 x 200 field per pair / floor per pair                      <= 3
 E      study 20 sections x 81 angles: 1 process / 2 processes         >= 1.8
 =====  ============================================================  =====
 
+the section design (``--design-only`` for these alone, about half a minute):
+
+=====  ============================================================  =====
+I      one inverse-design iteration, 240 panels / one analysis          <= 10
+J      a 12-parameter optimisation to convergence: panel solutions and  info
+       its wall time in analyses
+=====  ============================================================  =====
+
 and, with ``--viscous`` (about four minutes more), the viscous analysis:
 
 =====  ============================================================  =====
@@ -498,6 +506,110 @@ def run_viscous() -> dict:
     return out
 
 
+# ------------------------------------------------------------------------- section design
+DESIGN_GOALS = {
+    "I": ("one inverse-design iteration, 240 panels / one analysis of the same section", "<=",
+          10.0),
+}
+
+
+def _demo_foil():
+    return pf.load_outlines(str(ROOT / "geometries" / "tender_front_foil.dat"))[0]
+
+
+def goal_inverse_iteration(repeats: int) -> dict:
+    """I: one Gauss-Newton iteration of the inverse design against one default analysis (its
+    error estimate included) of the same section at the same panel count, both in CPU time on
+    one thread, interleaved.
+
+    One iteration is what the design repeats: a new section solved (assembly, factorisation),
+    the exact sensitivities of its solution to the shape coefficients (one pass over the
+    point-panel pairs, one solve with the kept factors), the Cp Jacobian and the damped least
+    squares step. Alternating between two coefficient sets keeps the model from reusing its
+    last solution.
+    """
+    from panelflow.design.inverse import _qp_step, _targeted, design_form
+    from panelflow.design.model import DesignModel
+    from panelflow.design.targets import plateau_target
+    from panelflow.design.check import surface_cp
+
+    foil = _demo_foil()
+    panels = 240
+    xu, cu, xl, cl = surface_cp(pf.solve(pf.Problem([foil], pf.OperatingPoint(alpha_deg=(2.0,)),
+                                                    panels=panels, error_estimate=False)))
+    target = plateau_target(lambda x: np.interp(x, xu, cu), "upper", -0.75, 0.04, 0.45, 0.8,
+                            other=lambda x: np.interp(x, xl, cl))
+    form = design_form(foil, target)
+    model = DesignModel(form, panels)
+    idx, cp_t = _targeted(model, target, 0.01)
+    coefficients = [form.coefficients, form.coefficients + 1e-6]
+    turn = [0]
+
+    def iteration():
+        c = coefficients[turn[0] % 2]
+        turn[0] += 1
+        st = model.state(c)
+        dcp, _ = st.cp_derivatives(2.0)
+        jac = dcp[idx]
+        r = st.cp(2.0)[idx] - cp_t
+        n = jac.shape[1]
+        _qp_step(jac, r, 1e-3 * np.eye(n), np.zeros((0, n)), np.zeros(0), np.zeros((0, n)),
+                 np.zeros(0))
+
+    with single_thread():
+        s = side_by_side({"iteration": iteration,
+                          "analysis": lambda: pf.analyse([foil], [2.0], n_panels=panels)},
+                         repeats)
+    return {"sides": s, "ratio": _ratio(s["iteration"], s["analysis"]),
+            "functions": form.size, "panels": panels,
+            "unit": "s, CPU time, 1 thread; analysis with its error estimate"}
+
+
+def info_optimisation(repeats: int = 3) -> dict:
+    """A 12-parameter optimisation to convergence (the demo job's objective and constraints,
+    one start) as a count of panel solutions and a wall time relative to one analysis of the
+    start at the same panel count (best of ``repeats`` each, one thread)."""
+    from panelflow.design.optimise import optimise
+    from panelflow.design.spec import load_design_case
+
+    case = load_design_case(ROOT / "geometries" / "tender_front_foil_design.toml")
+    job = case.job
+    job = type(job)(**{**{f: getattr(job, f) for f in job.__dataclass_fields__},
+                       "starts": 1, "functions": 12})
+    foil = case.start()
+    with threads.limited(1), threads.one_blas_thread():
+        t_analysis = _best_wall(lambda: pf.analyse([foil], [2.0], n_panels=job.panels), 7)
+        best, result = float("inf"), None
+        for _ in range(repeats):
+            t0 = time.perf_counter()
+            result = optimise(foil, job)
+            best = min(best, time.perf_counter() - t0)
+    start = result.starts[0]
+    return {"parameters": job.functions, "analyses": result.analyses,
+            "iterations": start.iterations, "converged": start.success,
+            "feasible": result.feasible, "optimisation_s": best, "analysis_s": t_analysis,
+            "ratio": best / t_analysis}
+
+
+def run_design(repeats: int = 15) -> dict:
+    out = {}
+    r = out["I"] = goal_inverse_iteration(repeats)
+    print(f"I  {DESIGN_GOALS['I'][0]}")
+    print(f"     iteration {_fmt(r['sides']['iteration'], 1e3, 'ms')}  ({r['functions']} "
+          "shape functions)")
+    print(f"     analysis  {_fmt(r['sides']['analysis'], 1e3, 'ms')}")
+    what, sense, goal = DESIGN_GOALS["I"]
+    met = r["ratio"] <= goal
+    print(f"     ratio of minima {r['ratio']:.2f}   goal {sense} {goal:g}: "
+          f"{'met' if met else 'NOT met'}")
+    r = out["J"] = info_optimisation()
+    print(f"J  {r['parameters']}-parameter optimisation (the demo job, one start) to "
+          f"{'convergence' if r['converged'] else 'its iteration limit'}: {r['analyses']} panel "
+          f"solutions in {r['iterations']} iterations, {r['optimisation_s']:.2f} s wall = "
+          f"{r['ratio']:.0f} analyses' time ({1e3 * r['analysis_s']:.1f} ms each)")
+    return out
+
+
 def main(argv=None) -> int:
     parser = argparse.ArgumentParser(description="panelflow speed ratios, measured side by side")
     parser.add_argument("--json", metavar="FILE", help="write every number to FILE as JSON")
@@ -506,9 +618,14 @@ def main(argv=None) -> int:
     parser.add_argument("--viscous", action="store_true",
                         help="also the viscous goals G and H (about four minutes more)")
     parser.add_argument("--viscous-only", action="store_true", help="only the viscous goals")
+    parser.add_argument("--design-only", action="store_true",
+                        help="only the section-design lines (I, J)")
     ns = parser.parse_args(argv)
-    out = {} if ns.viscous_only else run(repeats=5 if ns.quick else 15, large=not ns.quick,
-                                         extras=not ns.quick)
+    only = ns.viscous_only or ns.design_only
+    out = {} if only else run(repeats=5 if ns.quick else 15, large=not ns.quick,
+                              extras=not ns.quick)
+    if not ns.viscous_only:
+        out["design"] = run_design(repeats=5 if ns.quick else 15)
     if ns.viscous or ns.viscous_only:
         out["viscous"] = run_viscous()
     if ns.json:

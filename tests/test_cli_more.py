@@ -726,9 +726,10 @@ def test_structural_example_reads_the_json(load_run):
     lines = proc.stdout.splitlines()
     assert "MISMATCH" not in proc.stdout
     head = next(i for i, ln in enumerate(lines) if "shear [N]" in ln and "bending" in ln)
-    stations = [ln.split() for ln in lines[head + 1:head + 7]]
-    assert [float(s[0]) for s in stations] == pytest.approx([0, 0.2, 0.4, 0.6, 0.8, 1.0],
-                                                            abs=5e-4)  # printed to 3 decimals
+    stations = [ln.split() for ln in lines[head + 1:head + 8]]
+    # the six even stations and the spar (default 0.35 c) among them
+    assert [float(s[0]) for s in stations] == pytest.approx(
+        [0, 0.2, 0.35, 0.4, 0.6, 0.8, 1.0], abs=5e-4)  # printed to 3 decimals
     assert all(len(s) == 3 and all(_is_number(v) for v in s) for s in stations)
     assert "spar reaction" in proc.stdout
 

@@ -36,6 +36,7 @@ CONDITIONS = {
     "free surface": ("--free-surface", "0.5"),
     "fluid and speed": ("--fluid", "sea-water", "--speed", "9"),
     "length scale": ("--chord", "0.25"),
+    "Reynolds number": ("--reynolds", "2e6"),
 }
 
 # (condition, output) -> a fragment of the refusal; cells not listed work
@@ -50,6 +51,7 @@ REFUSED = {
     ("length scale", "field"): "serves the loads",
     ("length scale", "compare"): "serves the loads",
     ("length scale", "figures"): "serves the loads",
+    ("Reynolds number", "field"): "inviscid solution's",
 }
 
 # what a working condition adds to the files: JSON keys per angle / CSV columns
@@ -58,9 +60,12 @@ MARGIN_COLUMNS = {
     "cavitation": ("inception_speed", "cavitation_number", "cavitation_margin"),
     "wall": ("plane_clearance", "cl_free_space", "cm_free_space"),
     "free surface": ("plane_clearance", "cl_free_space", "cm_free_space"),
+    "Reynolds number": ("cl_viscous", "cd", "cd_friction", "cd_form", "lift_to_drag",
+                        "transition_upper", "transition_lower", "viscous_converged"),
 }
 MARGIN_RECORDS = {"Mach number": "compressibility", "cavitation": "cavitation",
-                  "wall": "plane", "free surface": "plane", "flap": "flap"}
+                  "wall": "plane", "free surface": "plane", "flap": "flap",
+                  "Reynolds number": "viscous"}
 
 
 def _csv_header(path) -> list:
@@ -145,6 +150,10 @@ def _check_loads(capsys, condition, folder):
         assert rec["analysis"]["plane"]["distance"] == 0.5
     if condition == "length scale":
         assert rec["units"]["length"] == "m" and rec["bodies"][0]["chord"] == pytest.approx(0.25)
+    if condition == "Reynolds number":
+        # the viscous pressures and the skin friction: a drag the inviscid loads do not have
+        assert any("skin friction of the boundary-layer analysis" in n for n in rec["notes"])
+        assert rec["totals"]["cd_pressure"] > 1e-3
 
 
 def _check_compare(capsys, condition, folder):
@@ -171,6 +180,7 @@ CASE_CONDITIONS = {
     "free surface": "alpha = [0, 4]\nfree_surface = 0.5\n",
     "fluid and speed": "alpha = [0, 4]\nfluid = \"sea-water\"\nspeed = 9.0\n",
     "length scale": "alpha = [0, 4]\nchord = 0.25\nfluid = \"sea-water\"\nspeed = 9.0\n",
+    "Reynolds number": "alpha = [0, 4]\nreynolds = 2e6\n",
 }
 
 
@@ -256,7 +266,8 @@ def test_library_refuses_the_same_cells():
     ops = {"Mach number": OperatingPoint(alpha_deg=(4,), mach=0.4),
            "cavitation": OperatingPoint(alpha_deg=(4,), depth=0.5, fluid="sea-water", speed=9),
            "fluid and speed": OperatingPoint(alpha_deg=(4,), fluid="sea-water", speed=9),
-           "length scale": OperatingPoint(alpha_deg=(4,), chord=0.25)}
+           "length scale": OperatingPoint(alpha_deg=(4,), chord=0.25),
+           "Reynolds number": OperatingPoint(alpha_deg=(4,), reynolds=2e6)}
     for (condition, output), fragment in REFUSED.items():
         with pytest.raises(InputError, match=re.escape(fragment)):
             check_output(ops[condition], output)

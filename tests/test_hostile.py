@@ -273,3 +273,24 @@ def test_incomplete_case_run_keeps_the_finished_rows(here, monkeypatch, capsys):
 
     manifest = json.loads((here / "out" / "manifest.json").read_text())
     assert manifest["incomplete"] is True and manifest["unfinished"] == ["naca0012"]
+
+
+def test_field_larger_than_the_limit(here, capsys):
+    # once ran for more than five minutes; refused before the solve now
+    refused(capsys, "field", "naca2412", "--alpha", "4", "--resolution", "5000,5000",
+            "-o", "f.csv", fragment="point-panel pairs")
+    assert not (here / "f.csv").exists()
+
+
+def test_every_test_the_readme_names_exists():
+    # each reliability promise in the README names the test that holds it
+    import ast
+    import re
+
+    root = Path(__file__).resolve().parent.parent
+    named = re.findall(r"`(tests/test_\w+\.py)::(test_\w+)`", (root / "README.md").read_text())
+    assert len(named) >= 15
+    for path, name in named:
+        tree = ast.parse((root / path).read_text())
+        functions = {n.name for n in ast.walk(tree) if isinstance(n, ast.FunctionDef)}
+        assert name in functions, f"README names {path}::{name}, which does not exist"

@@ -4,7 +4,7 @@ Every module's imports are read with :mod:`ast` -- at the top and inside functio
 import of a panelflow module must go to the same stage or an earlier one:
 
     top-level modules (errors, files, version) -> geometry -> flow -> viscous -> conditions
-    -> analysis -> loads -> output -> study -> cli
+    -> analysis -> loads -> output -> study -> design -> cli
 
 The package root (``__init__``, ``__main__``) re-exports and may import anything.
 """
@@ -18,7 +18,7 @@ import pytest
 
 PACKAGE = Path(__file__).resolve().parent.parent / "panelflow"
 STAGES = ("", "geometry", "flow", "viscous", "conditions", "analysis", "loads", "output", "study",
-          "cli")
+          "design", "cli")
 ROOT_FILES = {"__init__.py", "__main__.py"}
 
 

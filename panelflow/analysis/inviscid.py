@@ -269,8 +269,10 @@ def _reference(outlines, chord_line):
     return line, le + 0.25 * (te - le)
 
 
-def build(outlines, n_panels: int | None = DEFAULT_PANELS):
+def build(outlines, n_panels: int | None = DEFAULT_PANELS, error_estimate: bool = False):
     """Check the outlines, panel them and factorise the system.
+
+    ``error_estimate`` also checks the half-count panellings the estimate will solve.
 
     Returns
     -------
@@ -278,7 +280,8 @@ def build(outlines, n_panels: int | None = DEFAULT_PANELS):
     """
     outlines = tuple(outlines)
     check.validate(outlines)
-    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels))
+    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels),
+                                    halves=error_estimate)
     return panellings, factorise(Panels.from_panellings(panellings))
 
 
@@ -311,7 +314,7 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     outlines, alpha = checked_inputs(outlines, alpha_deg)
     chord, quarter = _reference(outlines, chord_line)
     ref = quarter if reference_point is None else np.asarray(reference_point, float)
-    panellings, system = build(outlines, n_panels)
+    panellings, system = build(outlines, n_panels, error_estimate)
     fine = evaluate(system, alpha, chord, ref)
     if not error_estimate:
         return Analysis(outlines, panellings, fine, None)
@@ -367,7 +370,8 @@ def analyse_near_plane(outlines, alpha_deg, boundary, n_panels: int | None = DEF
     pitch = quarter if pitch_point is None else np.asarray(pitch_point, float)
     gaps = np.array([images.clearance(outlines, boundary.image(pitch, a), a) for a in alpha])
     check.validate(outlines)
-    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels))
+    panellings = checked_panellings(outlines, lambda o: panel_outline(o, n_panels),
+                                    halves=error_estimate)
     panels = Panels.from_panellings(panellings)
     sols = [_plane_angle(panels, boundary, pitch, float(a), chord, ref) for a in alpha]
     fine = stack(sols)

@@ -155,6 +155,18 @@ class OperatingPoint:
         A wall or free surface near the bodies
         (:class:`~panelflow.flow.images.Boundary`): each angle pitches the bodies relative to
         it.
+    reynolds : float or None
+        Reynolds number on the freestream speed and the main chord: adds the viscous analysis
+        (boundary layer, transition, drag; :mod:`panelflow.viscous`).
+    viscous : bool
+        Add the viscous analysis with the Reynolds number from the fluid, the speed and the
+        chord in metres (``chord``, or ``unit`` times the outline's chord). Set by ``reynolds``.
+    critical_amplification : float or None
+        Critical amplification factor of the e^N transition method (default 9); or
+    turbulence_level : float or None
+        the freestream turbulence level in percent, from which it follows (Mack 1977).
+    trip_upper, trip_lower : float or None
+        Forced transition (a trip) at this x/c on the upper or lower surface.
     """
 
     alpha_deg: tuple = ()
@@ -171,6 +183,12 @@ class OperatingPoint:
     temperature: float | None = None
     salinity: float | None = None
     altitude: float | None = None
+    reynolds: float | None = None
+    viscous: bool = False
+    critical_amplification: float | None = None
+    turbulence_level: float | None = None
+    trip_upper: float | None = None
+    trip_lower: float | None = None
 
     def __post_init__(self):
         alpha = np.atleast_1d(np.asarray(self.alpha_deg, dtype=float)).ravel() \
@@ -205,13 +223,61 @@ class OperatingPoint:
         if self.plane is not None and not isinstance(self.plane, Boundary):
             raise InputError(f"plane must be a Boundary (Boundary.ground(h) or "
                              f"Boundary.free_surface(h)), got {type(self.plane).__name__}")
+        self._check_viscous()
+
+    def _check_viscous(self) -> None:
+        if self.reynolds is not None:
+            re = _positive(self.reynolds, "Reynolds number")
+            if not 1e3 <= re <= 1e9:
+                raise InputError(f"Reynolds number {re:.3g}: give a value from 1e3 to 1e9")
+            object.__setattr__(self, "reynolds", re)
+            object.__setattr__(self, "viscous", True)
+        object.__setattr__(self, "viscous", bool(self.viscous))
+        settings = ("critical_amplification", "turbulence_level", "trip_upper", "trip_lower")
+        given = [k for k in settings if getattr(self, k) is not None]
+        if given and not self.viscous:
+            raise InputError(f"{given[0].replace('_', ' ')} belongs to the viscous analysis: "
+                             "give the Reynolds number (or ask for the viscous analysis)")
+        if self.critical_amplification is not None and self.turbulence_level is not None:
+            raise InputError("give either the critical amplification factor or the turbulence "
+                             "level, not both")
+        if self.viscous:
+            self.transition()  # refuse bad transition settings now, before any work
+            if self.plane is not None:
+                raise InputError("the viscous analysis is for free flow: a wall or free surface "
+                                 "is not modelled with it")
+            if self.reynolds is None:
+                missing = [w for w, v in (("the fluid", self.fluid), ("the speed", self.speed))
+                           if v is None]
+                if self.chord is None and self.unit is None:
+                    missing.append("the chord in metres (or the outline's unit)")
+                if missing:
+                    raise InputError("the Reynolds number of the viscous analysis comes from the "
+                                     "fluid, the speed and the chord: give " + ", ".join(missing)
+                                     + ", or the Reynolds number itself")
+
+    def transition(self):
+        """The transition settings of the viscous analysis (:class:`panelflow.viscous.Transition`)."""
+        from panelflow.viscous import Transition
+
+        trips = {"upper_trip": self.trip_upper, "lower_trip": self.trip_lower}
+        if self.turbulence_level is not None:
+            level = _positive(self.turbulence_level, "turbulence level")
+            return Transition.from_turbulence_level(level, **trips)
+        n = 9.0 if self.critical_amplification is None else self.critical_amplification
+        return Transition(_positive(n, "critical amplification factor"), **trips)
 
     def _check_fluid(self) -> None:
         if self.fluid is not None and self.density is not None:
             raise InputError("give either a fluid or a density, not both")
         state = {k: getattr(self, k) for k in ("temperature", "salinity", "altitude")
                  if getattr(self, k) is not None}
-        if state and not isinstance(self.fluid, str):
+        attribute = {"temperature": "temperature_c", "salinity": "salinity",
+                     "altitude": "altitude"}
+        if state and isinstance(self.fluid, Fluid) and all(
+                getattr(self.fluid, attribute[k]) == v for k, v in state.items()):
+            pass  # a fluid made from these values already (with_angles, dataclasses.replace)
+        elif state and not isinstance(self.fluid, str):
             raise InputError(f"the {' and '.join(state)} set a preset fluid's properties: give "
                              "the fluid by name (air, fresh-water or sea-water)")
         if isinstance(self.fluid, str):
@@ -265,6 +331,10 @@ class OperatingPoint:
                 out[key] = getattr(self, key)
         if self.plane is not None:
             out["plane"] = {"kind": self.plane.kind, "distance": self.plane.distance}
+        if self.viscous:
+            out["viscous"] = {k: getattr(self, k) for k in
+                              ("reynolds", "critical_amplification", "turbulence_level",
+                               "trip_upper", "trip_lower") if getattr(self, k) is not None}
         return out
 
 
@@ -345,6 +415,18 @@ class Problem:
         if file_unit is not None and op_unit is not None and op_unit != file_unit:
             raise InputError(f"length unit {op_unit}: the outline file's column header says "
                              f"{file_unit}; leave the unit out or give {file_unit}")
+        if self.operating.viscous:
+            if len(bodies) > 1 or (self.flap is not None and self.flap.gap is not None):
+                raise InputError(
+                    "the viscous analysis handles one body: the boundary layers of several "
+                    "bodies in each other's flow (a flap's slot, a wake over another body) are "
+                    "not modelled; analyse these bodies inviscidly")
+            from panelflow.geometry.outline import SMOOTH
+
+            if bodies[0].kind == SMOOTH:
+                raise InputError(
+                    f"{bodies[0].name}: no trailing edge, and the viscous analysis needs one to "
+                    "start the wake (a rounded tail's separation is outside this model)")
         plane = self.operating.plane
         if plane is not None and plane.distance > MAX_DISTANCE_CHORDS * bodies[0].chord:
             raise InputError(
@@ -405,17 +487,23 @@ def _refusals(op: OperatingPoint, output: str) -> list:
         if op.depth is not None:
             out.append("the cavitation check is made on the surface pressures; the field does "
                        "not use a running depth")
+    if output == "field" and op.viscous:
+        out.append("the flow field is the inviscid solution's; the displacement of the "
+                   "boundary layer is not in it: leave out the viscous analysis")
     if output == "loads" and (op.fluid is None or op.speed is None):
         out.append("loads need the fluid (or its density) and the speed")
     if output in ("solve", "compare", "field", "figures") and op.depth is None and (
+            not op.viscous or op.reynolds is not None) and (
             op.fluid is not None or op.speed is not None):
         # (temperature, salinity and altitude need a fluid, so they are refused with it)
-        out.append("a fluid and a speed serve the cavitation check here: give the running depth "
-                   "too (loads take them without)")
-    if output in ("solve", "compare", "field", "figures") and (op.unit is not None
-                                                               or op.chord is not None):
-        out.append("a length unit or chord in metres serves the loads; the coefficients here "
-                   "do not depend on it")
+        out.append("a fluid and a speed serve the cavitation check or the viscous analysis "
+                   "here: give the running depth, or ask for the viscous analysis (loads take "
+                   "them without)")
+    if output in ("solve", "compare", "field", "figures") and (
+            not op.viscous or op.reynolds is not None) and (op.unit is not None
+                                                            or op.chord is not None):
+        out.append("a length unit or chord in metres serves the loads or the viscous "
+                   "analysis's Reynolds number; the coefficients here do not depend on it")
     return out
 
 

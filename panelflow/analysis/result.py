@@ -18,7 +18,8 @@ import numpy as np
 from panelflow.analysis.inviscid import Analysis, AngleResult
 from panelflow.analysis.problem import OperatingPoint, Problem
 
-__all__ = ["PlaneEffect", "Result", "as_result"]
+__all__ = ["PlaneEffect", "ViscousPart", "Result", "as_result", "margin_columns",
+           "margin_record", "VISCOUS_COLUMNS"]
 
 
 @dataclass(frozen=True)
@@ -56,6 +57,41 @@ class PlaneEffect:
 
 
 @dataclass(frozen=True)
+class ViscousPart:
+    """The viscous analysis of a result, one :class:`panelflow.viscous.ViscousResult` per angle.
+
+    Attributes
+    ----------
+    reynolds : float
+    reynolds_source : str
+        How the Reynolds number was found (given, or from the fluid, speed and chord).
+    transition : panelflow.viscous.Transition
+    results : tuple of ViscousResult
+        In the order of the result's angles; an unconverged angle has ``converged`` False and
+        NaN in every coefficient.
+    after_failure : ndarray of bool
+        Angles reached in a sweep only after an unconverged one (their start was older).
+    limits : str
+        Where the viscous model stops (stated with every output).
+    """
+
+    reynolds: float
+    reynolds_source: str
+    transition: object
+    results: tuple = field(repr=False)
+    after_failure: np.ndarray = field(repr=False)
+    limits: str = field(repr=False, default="")
+
+    def column(self, name: str) -> np.ndarray:
+        """One quantity over the angles (NaN where the iteration did not converge)."""
+        return np.array([float(getattr(r, name)) for r in self.results], float)
+
+    @property
+    def converged(self) -> np.ndarray:
+        return np.array([bool(r.converged) for r in self.results])
+
+
+@dataclass(frozen=True)
 class Result:
     """Everything computed for one problem.
 
@@ -76,6 +112,8 @@ class Result:
         With a wall or free surface: clearance and the change from free space.
     flap : FlappedSection or None
         With a flap: the deflected geometry, hinge point and undeflected chord line.
+    viscous : ViscousPart or None
+        With a Reynolds number: drag, transition, separation, viscous lift and moment per angle.
     notes : tuple of str
         Plain sentences on where the model stops for these inputs (to be shown with the
         numbers).
@@ -88,6 +126,7 @@ class Result:
     plane: PlaneEffect | None = None
     flap: object = None
     notes: tuple = ()
+    viscous: ViscousPart | None = None
 
     # -- the inviscid quantities, read through
     @property
@@ -166,7 +205,7 @@ class Result:
 
     def __repr__(self) -> str:
         parts = [f"{self.label!r}", f"{len(self)} angle(s)"]
-        for name in ("compressibility", "cavitation", "plane", "flap"):
+        for name in ("compressibility", "cavitation", "plane", "flap", "viscous"):
             if getattr(self, name) is not None:
                 parts.append(name)
         return f"Result({', '.join(parts)})"
@@ -193,7 +232,9 @@ def margin_columns(result: Result) -> dict:
       ``cm_mach_error_estimate``, ``cp_min_mach`` (main body), ``mach_critical``;
     * cavitation: ``inception_speed`` (m/s), and with a speed ``cavitation_number`` and
       ``cavitation_margin`` (cavitation number plus the lowest Cp: negative when cavitating);
-    * plane: ``plane_clearance`` (outline units), ``cl_free_space``, ``cm_free_space``.
+    * plane: ``plane_clearance`` (outline units), ``cl_free_space``, ``cm_free_space``;
+    * viscous analysis: see :data:`VISCOUS_COLUMNS` (NaN where the iteration did not converge,
+      ``viscous_converged`` 1 or 0).
     """
     out = {}
     c = result.compressibility
@@ -211,7 +252,23 @@ def margin_columns(result: Result) -> dict:
     if p is not None:
         out.update(plane_clearance=np.asarray(p.clearance), cl_free_space=np.asarray(p.cl_free),
                    cm_free_space=np.asarray(p.cm_free))
+    v = result.viscous
+    if v is not None:
+        out.update({column: v.column(field_) for column, field_ in VISCOUS_COLUMNS.items()})
+        out["viscous_converged"] = v.converged.astype(float)
+        out["viscous_residual"] = v.column("residual")
     return out
+
+
+# column name in tables and files -> field of panelflow.viscous.ViscousResult
+VISCOUS_COLUMNS = {
+    "cl_viscous": "cl", "cm_viscous": "cm", "cd": "cd", "cd_friction": "cd_friction",
+    "cd_form": "cd_pressure", "cd_squire_young": "cd_squire_young",
+    "lift_to_drag": "lift_to_drag", "transition_upper": "transition_upper",
+    "transition_lower": "transition_lower", "separation_upper": "separation_upper",
+    "reattachment_upper": "reattachment_upper", "separation_lower": "separation_lower",
+    "reattachment_lower": "reattachment_lower",
+}
 
 
 def margin_record(result: Result) -> dict:
@@ -237,4 +294,13 @@ def margin_record(result: Result) -> dict:
     f = result.flap
     if f is not None:
         out["flap"] = {"kind": f.kind, "hinge": f.hinge, "angle_deg": f.angle_deg}
+    v = result.viscous
+    if v is not None:
+        tr = v.transition
+        out["viscous"] = {"reynolds": v.reynolds, "reynolds_source": v.reynolds_source,
+                          "critical_amplification": tr.critical_amplification,
+                          "trip_upper": tr.upper_trip, "trip_lower": tr.lower_trip,
+                          "unconverged_alpha_deg": [float(r.alpha_deg) for r in v.results
+                                                    if not r.converged],
+                          "limits": v.limits}
     return out

@@ -16,7 +16,7 @@ import numpy as np
 
 from panelflow.analysis.inviscid import alpha_for_cl, analyse, analyse_near_plane
 from panelflow.analysis.problem import Problem
-from panelflow.analysis.result import PlaneEffect, Result
+from panelflow.analysis.result import PlaneEffect, Result, ViscousPart
 from panelflow.errors import InputError
 from panelflow.geometry.outline import SMOOTH
 
@@ -112,6 +112,76 @@ def _peak_place(result: Result, k: int, body) -> str:
         return (f"in the slot, on the trailing part of {name} (x/c {body.x_cp_min:.3f}): the "
                 "flow through the slot may separate")
     return (f"on {name} at x/c {body.x_cp_min:.3f}: separation behind the peak likely")
+def _reynolds(problem: Problem, chord_outline: float) -> tuple[float, str]:
+    """The Reynolds number of the viscous analysis and how it was found."""
+    op = problem.operating
+    if op.reynolds is not None:
+        return op.reynolds, "given"
+    from panelflow.conditions.fluids import UNITS
+    from panelflow.conditions.viscosity import preset_kinematic_viscosity, reynolds_number
+
+    fluid = op.fluid  # at the user's temperature, salinity and altitude
+    nu, where = preset_kinematic_viscosity(fluid.name, fluid.temperature_c, fluid.salinity,
+                                           fluid.altitude)
+    chord_m = op.chord if op.chord is not None else UNITS[op.unit] * chord_outline
+    re = reynolds_number(op.speed, chord_m, nu)
+    return re, (f"{op.speed:g} m/s x {chord_m:.4g} m chord / kinematic viscosity of {where}")
+
+
+def _viscous(problem: Problem, inviscid, alpha) -> ViscousPart:
+    """The viscous analysis at every angle, warm-started along the sweep."""
+    from panelflow.viscous import LIMITS, polar
+
+    reynolds, source = _reynolds(problem, inviscid.chord)
+    transition = problem.operating.transition()
+    f = inviscid.fine
+    sweep = polar(f.system, alpha, reynolds, transition, chord_line=f.chord_line,
+                  reference_point=f.reference_point)
+    index = {float(a): k for k, a in enumerate(sweep.alpha_deg)}
+    order = [index[float(a)] for a in alpha]
+    return ViscousPart(reynolds, source, transition, tuple(sweep.results[k] for k in order),
+                       np.asarray(sweep.after_failure)[order], LIMITS)
+
+
+def _viscous_angle_for_lift(problem: Problem, inviscid_angle: float, bodies, chord_line):
+    """The angle whose viscous lift is the target: a secant iteration from the inviscid one.
+
+    The boundary layer takes some lift away, so the viscous angle is a little larger; each
+    step is a warm-started viscous solve of the same factorised system.
+    """
+    from panelflow.viscous import solve as viscous_solve
+
+    target = problem.operating.target_cl
+    inviscid = analyse(bodies, [inviscid_angle], n_panels=problem.panels,
+                       reference_point=problem.reference_point, error_estimate=False,
+                       chord_line=chord_line)
+    f = inviscid.fine
+    reynolds, _ = _reynolds(problem, inviscid.chord)
+    transition = problem.operating.transition()
+
+    def lift(a, warm=None):
+        r = viscous_solve(f.system, a, reynolds, transition, warm, chord_line=f.chord_line,
+                          reference_point=f.reference_point)
+        if not r.converged:
+            raise InputError(f"the viscous analysis did not converge at {a:.3g} deg while "
+                             f"looking for cl = {target:g}: {r.residual:.1e} residual; the "
+                             "target may lie beyond the maximum lift this model gives")
+        return r.cl - target, r
+
+    a0 = inviscid_angle
+    f0, r0 = lift(a0)
+    slope = 2.0 * np.pi * np.pi / 180.0  # thin-airfoil lift slope per degree, a first step
+    a1 = a0 - f0 / slope
+    f1, r1 = lift(a1, r0)
+    for _ in range(_SECANT_STEPS):
+        if abs(f1) < 1e-6:
+            return a1
+        if f1 == f0:
+            break
+        a0, a1, f0 = a1, a1 - f1 * (a1 - a0) / (f1 - f0), f1
+        f1, r1 = lift(a1, r1)
+    raise InputError(f"no angle of attack gives a viscous cl of {target:g} (the iteration "
+                     "stalled)")
 
 
 def model_notes(result: Result) -> tuple:
@@ -138,6 +208,13 @@ def model_notes(result: Result) -> tuple:
             notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
     if result.compressibility is not None:
         notes.extend(result.compressibility.warnings)
+    v = result.viscous
+    if v is not None:
+        for r in v.results:
+            if not r.converged:
+                from panelflow.viscous.section import unconverged_message
+
+                notes.append(unconverged_message(r))
     if result.cavitation is not None and np.any(result.cavitation.cavitating):
         a = result.alpha_deg[np.asarray(result.cavitation.cavitating)]
         notes.append(f"cavitation expected at alpha {', '.join(f'{v:g}' for v in a)} deg at "
@@ -172,6 +249,8 @@ def solve(problem: Problem) -> Result:
     bodies, chord_line, flapped, smoothing = _geometry(problem)
     alpha = (np.array([_angle_for_lift(problem, bodies, chord_line)]) if op.target_cl is not None
              else np.asarray(op.alpha_deg, float))
+    if op.target_cl is not None and op.viscous:
+        alpha = np.array([_viscous_angle_for_lift(problem, float(alpha[0]), bodies, chord_line)])
     plane = None
     if op.plane is None:
         inviscid = analyse(bodies, alpha, n_panels=problem.panels,
@@ -200,6 +279,8 @@ def solve(problem: Problem) -> Result:
         from panelflow.conditions.cavitation import assess_in
 
         cavitation = assess_in(inviscid, op.depth, op.fluid, speed=op.speed)
-    result = Result(problem, inviscid, compressibility, cavitation, plane, flapped)
+    viscous = _viscous(problem, inviscid, alpha) if op.viscous else None
+    result = Result(problem, inviscid, compressibility, cavitation, plane, flapped,
+                    viscous=viscous)
     return Result(problem, inviscid, compressibility, cavitation, plane, flapped,
-                  tuple(f"smoothing: {s}" for s in smoothing) + model_notes(result))
+                  tuple(f"smoothing: {s}" for s in smoothing) + model_notes(result), viscous)

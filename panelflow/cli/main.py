@@ -1,4 +1,5 @@
-"""Command line: ``panelflow solve | field | compare | loads | run | check | section``.
+"""Command line: ``panelflow solve | field | compare | loads | run | check | section | reshape |
+inverse | optimise``.
 
 Each command is options -> description (:mod:`panelflow.cli.options`) -> one library call
 (:func:`panelflow.analysis.solve.solve`) -> writers. No command chooses between analyses: a
@@ -17,7 +18,7 @@ import numpy as np
 
 from panelflow.cli.options import (Parser, add_condition_options, add_geometry_options,
                                    checked_operating, input_files, join_numeric_values,
-                                   parse_numbers, problem_of)
+                                   parse_angles, parse_numbers, problem_of)
 from panelflow.errors import InputError, PanelflowError
 from panelflow.geometry.arguments import load_bodies, parse_point
 from panelflow.version import __version__
@@ -42,10 +43,31 @@ def _wrote(paths) -> None:
 
 
 def _check_figure(ns) -> None:
-    if ns.plot:
-        from panelflow.output.figures import check_figure_path
+    from panelflow.output.figures import check_figure_path
 
-        check_figure_path(ns.plot, ns.force)
+    for path in (ns.plot, getattr(ns, "layer_plot", None), getattr(ns, "drag_plot", None)):
+        if path:
+            check_figure_path(path, ns.force)
+    if (getattr(ns, "layer_plot", None) or getattr(ns, "drag_plot", None)) and not (
+            ns.reynolds or ns.viscous):
+        raise InputError("--layer-plot and --drag-plot draw the viscous analysis: give "
+                         "--reynolds (or --viscous)")
+
+
+def _viscous_figures(ns, results) -> list:
+    """The boundary-layer figure (first angle of the first result) and the drag polar."""
+    written = []
+    if getattr(ns, "layer_plot", None):
+        from panelflow.output.viscous_figures import boundary_layer_figure
+
+        written.append(boundary_layer_figure(results[0], ns.layer_plot,
+                                             float(results[0].alpha_deg[0]),
+                                             overwrite=ns.force))
+    if getattr(ns, "drag_plot", None):
+        from panelflow.output.viscous_figures import drag_polar_figure
+
+        written.append(drag_polar_figure(results, ns.drag_plot, overwrite=ns.force))
+    return written
 
 
 def _guard(ns, outputs) -> None:
@@ -67,7 +89,7 @@ def _cmd_solve(ns) -> int:
                          f"(this run has {len(operating.alpha_deg)}, which no reader could tell "
                          "apart); give fewer angles for the figure, or draw the polar with "
                          "compare --plot")
-    _guard(ns, [*(ns.output or []), *surfaces, ns.plot])
+    _guard(ns, [*(ns.output or []), *surfaces, ns.plot, ns.layer_plot, ns.drag_plot])
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
     if surfaces:
         from panelflow.output.surface_files import check_surface_outputs
@@ -85,6 +107,7 @@ def _cmd_solve(ns) -> int:
 
         written.append(surface_cp_figure(result, ns.plot, list(result.alpha_deg),
                                          overwrite=ns.force))
+    written += _viscous_figures(ns, [result])
     if ns.json:
         sys.stdout.write(analysis_json(result))
     else:
@@ -114,6 +137,12 @@ def _cmd_field(ns) -> int:
     resolution = parse_numbers(ns.resolution, 2, "--resolution", int)
     window = parse_numbers(ns.window, 4, "--window") if ns.window else None
     points = read_points_csv(ns.points) if ns.points else None
+    from panelflow.flow.field import check_field_size
+
+    panels = sum(problem.panels or len(b.points) - 1 for b in problem.bodies)
+    check_field_size(len(points) if points is not None else resolution[0] * resolution[1],
+                     panels, f"--points {ns.points}" if points is not None
+                     else f"--resolution {ns.resolution}")  # refused before the solve
     result = _solve(problem.with_error_estimate(False))
     alpha = float(result.alpha_deg[0])
     if points is None:
@@ -149,7 +178,7 @@ def _cmd_compare(ns) -> int:
     operating = checked_operating(ns, "compare")
     cases = [load_bodies([arg]) for arg in expand_arguments(ns.outlines)]
     problems = [problem_of(ns, bodies, operating) for bodies in cases]
-    _guard(ns, [*(ns.output or []), ns.plot])
+    _guard(ns, [*(ns.output or []), ns.plot, ns.layer_plot, ns.drag_plot])
     _check_figure(ns)
     if ns.output:
         from panelflow.output.tables import check_table_outputs
@@ -184,6 +213,7 @@ def _cmd_compare(ns) -> int:
 
             written.append(compare_cp_figure(results, labels, None, ns.plot,
                                              overwrite=ns.force))
+    written += _viscous_figures(ns, results)
     _wrote(written)
     return 0
 
@@ -375,6 +405,187 @@ def _add_reshape_parser(sub, common) -> None:
     e.set_defaults(func=_cmd_reshape)
 
 
+def _add_viscous_figures(parser) -> None:
+    parser.add_argument("--layer-plot", metavar="FIGURE",
+                        help="with the viscous analysis: Cp, skin friction and shape factor "
+                        "along the surface at the first angle, transition and separation marked")
+    parser.add_argument("--drag-plot", metavar="FIGURE",
+                        help="with the viscous analysis: drag polar (cl against cd) and cl/cd "
+                        "against the angle")
+
+
+# ------------------------------------------------------------------------- section design
+# Options whose values may start with a minus sign (a suction Cp), folded like --alpha's.
+_DESIGN_NUMERIC = ("--plateau", "--thickness-at")
+
+
+def _fold_design_values(argv):
+    """``--plateau -0.6,0.05,0.4,0.8`` as one token, so the value is not read as an option."""
+    out, i = [], 0
+    while i < len(argv):
+        tok = argv[i]
+        if tok in _DESIGN_NUMERIC and i + 1 < len(argv) and argv[i + 1][:1] == "-":
+            try:
+                [float(v) for v in argv[i + 1].split(",")]
+            except ValueError:
+                pass
+            else:
+                out.append(f"{tok}={argv[i + 1]}")
+                i += 2
+                continue
+        out.append(tok)
+        i += 1
+    return out
+
+
+def _design_target(ns, start):
+    """The inverse design's target: a table, or the plateau on the start's own Cp."""
+    from panelflow.design.check import surface_cp
+    from panelflow.design.targets import plateau_target, read_target
+
+    if (ns.target is None) == (ns.plateau is None):
+        raise InputError("give the target with --target FILE or --plateau CP,FROM,TO,END")
+    if ns.target is not None:
+        return read_target(ns.target)
+    level, a, b, c = parse_numbers(ns.plateau, 4, "--plateau")
+    from panelflow.analysis.problem import OperatingPoint, Problem
+
+    op = (OperatingPoint(alpha_deg=parse_angles([ns.alpha])) if ns.alpha is not None
+          else OperatingPoint(target_cl=float(ns.cl)))
+    xu, cu, xl, cl = surface_cp(_solve(Problem([start], op, panels=ns.panels,
+                                               error_estimate=False)))
+    mine, other = ((xu, cu), (xl, cl)) if ns.surface == "upper" else ((xl, cl), (xu, cu))
+    return plateau_target(lambda x: np.interp(x, *mine), ns.surface, level, a, b, c,
+                          other=lambda x: np.interp(x, *other))
+
+
+def _cmd_inverse(ns) -> int:
+    from panelflow.design.inverse import ThicknessLimit
+    from panelflow.design.run import run_inverse
+    from panelflow.geometry.measure import decompose
+
+    bodies = load_bodies([ns.outline])
+    if len(bodies) != 1:
+        raise InputError(f"inverse {ns.outline}: one body needed, it holds {len(bodies)}")
+    start = bodies[0]
+    if (ns.alpha is None) == (ns.cl is None):
+        raise InputError("give the design angle with --alpha A or the design lift with --cl C")
+    alpha = None
+    if ns.alpha is not None:
+        angles = parse_angles([ns.alpha])
+        if len(angles) != 1:
+            raise InputError("--alpha: one design angle")
+        alpha = float(angles[0])
+    cl = None if ns.cl is None else float(parse_numbers(ns.cl, 1, "--cl")[0])
+    limits = []
+    for text in ns.thickness_at or []:
+        parts = text.split(",")
+        if len(parts) not in (2, 3):
+            raise InputError(f"--thickness-at {text}: give X,MIN or X,MIN,MAX (chords)")
+        x, lo, *hi = parse_numbers(text, len(parts), "--thickness-at")
+        limits.append(ThicknessLimit(x, x, lo, hi[0] if hi else None))
+    if ns.keep_thickness_at:
+        shape = decompose(start)
+        for x in ns.keep_thickness_at:
+            t = float(2.0 * shape.at(shape.half_thickness, [x])[0])
+            limits.append(ThicknessLimit(x, x, t, t))
+    from panelflow.files import refuse_inputs
+
+    inputs = input_files(ns) + ([ns.target] if ns.target else [])
+    refuse_inputs([o for o in (ns.output, ns.plot) if o], inputs)
+    target = _design_target(ns, start)
+    run = run_inverse(start, target, ns.output, alpha_deg=alpha, cl=cl, panels=ns.panels,
+                      functions=ns.functions, thickness=limits,
+                      trailing_edge_thickness=ns.trailing_edge_thickness, name=ns.name,
+                      plot=ns.plot, overwrite=ns.force, inputs=inputs)
+    if ns.json:
+        from panelflow.design.report import before_after_rows
+        from panelflow.output.writers import json_ready
+
+        r = run.result
+        record = {"target": r.target.record(), "alpha_deg": r.alpha_deg,
+                  "design_model": {"rms_mismatch": r.rms_mismatch,
+                                   "max_mismatch": r.max_mismatch, "iterations": r.iterations,
+                                   "stages": r.stages, "converged": r.converged},
+                  "check_panels": run.designed.panels, "notes": list(r.notes),
+                  "rows": before_after_rows(run.start, run.designed),
+                  "written": [str(w) for w in run.written]}
+        sys.stdout.write(json.dumps(json_ready(record), indent=1) + "\n")
+    else:
+        sys.stdout.write(run.summary())
+    return 0
+
+
+def _cmd_optimise(ns) -> int:
+    from panelflow.design.run import run_optimisation
+    from panelflow.design.spec import load_design_case
+    from panelflow.study.runner import open_executor
+
+    case = load_design_case(ns.case)
+    with open_executor(workers=ns.workers, scheduler=ns.scheduler) as executor:
+        run = run_optimisation(case, executor, output=ns.output, overwrite=ns.force)
+    sys.stdout.write(run.summary())
+    return 0
+
+
+def _add_design_parsers(sub, common) -> None:
+    v = sub.add_parser(
+        "inverse", parents=[common],
+        help="design a section whose surface Cp matches a target (all of the section or part)",
+        description="Inverse design: find the section whose surface Cp at the design angle or "
+        "lift matches a target in least squares, keeping the trailing edge and the thickness "
+        "limits. A target over part of the section changes only that part. The section is "
+        "written, read back and analysed afresh at twice the panels with the start; every "
+        "printed figure comes from that check.")
+    v.add_argument("outline", metavar="OUTLINE", help="the start: file or section spec (one body)")
+    tg = v.add_mutually_exclusive_group()
+    tg.add_argument("--target", metavar="FILE",
+                    help="target table: columns x, surface (upper/lower) and cp or speed")
+    tg.add_argument("--plateau", metavar="CP,FROM,TO,END",
+                    help="a flat Cp plateau on one surface from x/c FROM to TO, recovering to "
+                    "the start's own Cp by END; the other surface keeps its Cp to END")
+    v.add_argument("--surface", choices=("upper", "lower"), default="upper",
+                   help="surface of the plateau (default upper)")
+    v.add_argument("--alpha", metavar="A", help="design angle of attack in degrees")
+    v.add_argument("--cl", metavar="C", help="design lift coefficient (the angle is found)")
+    v.add_argument("--functions", type=int, default=24, metavar="N",
+                   help="shape functions over the whole section (default 24; a partial target "
+                   "uses its share)")
+    v.add_argument("--panels", type=int, default=240, metavar="N",
+                   help="panels of the design model (default 240; the check uses twice)")
+    v.add_argument("--thickness-at", action="append", metavar="X,MIN[,MAX]",
+                   help="thickness limits at x/c X, in chords (repeatable)")
+    v.add_argument("--keep-thickness-at", action="append", type=float, metavar="X",
+                   help="hold the start's own thickness at x/c X (repeatable)")
+    v.add_argument("--trailing-edge-thickness", type=float, metavar="T",
+                   help="a new trailing-edge thickness in chords (whole-section targets only)")
+    v.add_argument("--name", metavar="TEXT", help="name of the designed section")
+    v.add_argument("-o", "--output", required=True, metavar="FILE",
+                   help="the designed section (.dat, .txt or .xy)")
+    v.add_argument("--plot", metavar="FIGURE",
+                   help="Cp of start, result and target overlaid (.png, .svg or .pdf)")
+    v.add_argument("--json", action="store_true", help="print the figures as JSON")
+    v.add_argument("--force", action="store_true", help="replace existing output files")
+    v.set_defaults(func=_cmd_inverse)
+
+    o = sub.add_parser(
+        "optimise", parents=[common],
+        help="optimise a section for its job from a TOML design case file",
+        description="Optimise a section for the objective and constraints of a design case "
+        "file (see geometries/tender_front_foil_design.toml). Writes the section, a "
+        "before/after table, figures and manifest.json into the output folder; every figure "
+        "comes from the written section analysed afresh at twice the design panels.")
+    o.add_argument("case", metavar="CASE.toml")
+    where = o.add_mutually_exclusive_group()
+    where.add_argument("--workers", type=int, metavar="N",
+                       help="local worker processes for the starting points")
+    where.add_argument("--scheduler", metavar="ADDRESS",
+                       help="a running Dask distributed scheduler (needs panelflow[cluster])")
+    o.add_argument("-o", "--output", metavar="DIR", help="output folder (default: from the case)")
+    o.add_argument("--force", action="store_true", help="replace existing output files")
+    o.set_defaults(func=_cmd_optimise)
+
+
 def _solving_parent(angles_help: str) -> argparse.ArgumentParser:
     """Options of every command that solves: geometry, operating point, --force."""
     g = argparse.ArgumentParser(add_help=False)
@@ -412,6 +623,7 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("--plot", metavar="FIGURE",
                    help=f"surface Cp figure (.png, .svg or .pdf) of every angle (at most "
                    f"{MAX_FIGURE_ANGLES}, one colour each)")
+    _add_viscous_figures(s)
     s.set_defaults(func=_cmd_solve)
 
     f = sub.add_parser("field", parents=[common, _solving_parent(one)],
@@ -444,6 +656,7 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("--json", action="store_true", help="print the table as JSON")
     m.add_argument("--progress", action="store_true",
                    help="show the progress bar even when stderr is not a terminal")
+    _add_viscous_figures(m)
     m.set_defaults(func=_cmd_compare)
 
     r = sub.add_parser("run", parents=[common],
@@ -501,6 +714,7 @@ def build_parser() -> argparse.ArgumentParser:
     w.set_defaults(func=_cmd_section)
 
     _add_reshape_parser(sub, common)
+    _add_design_parsers(sub, common)
     return p
 
 
@@ -508,7 +722,7 @@ def main(argv=None) -> int:
     """Run the command line; returns the exit status."""
     parser = build_parser()
     argv = sys.argv[1:] if argv is None else list(argv)
-    ns = parser.parse_args(join_numeric_values(argv))
+    ns = parser.parse_args(join_numeric_values(_fold_design_values(argv)))
     try:
         # undefined numbers (a centre of pressure without lift, an estimate that cannot be
         # made) are NaN and print as such; numpy's floating-point warnings about them are noise

@@ -25,7 +25,9 @@ NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": Fa
                    "--static-pressure": False, "--window": False, "--mach": False,
                    "--ground": False, "--free-surface": False, "--depth": False, "--flap": False,
                    "--resolution": False, "--flap-gap": False, "--flap-radius": False,
-                   "--node-tolerance": False, "--smooth-within": False,
+                   "--node-tolerance": False, "--smooth-within": False, "--reynolds": False,
+                   "--critical-amplification": False, "--turbulence-level": False,
+                   "--trip-upper": False, "--trip-lower": False,
                    "--temperature": False, "--salinity": False, "--altitude": False}
 
 
@@ -124,6 +126,23 @@ def add_condition_options(g, angles_help: str) -> None:
                    help="length unit of the outline: m, cm, mm, in, ft (default m)")
     g.add_argument("--chord", type=float, metavar="C",
                    help="scale the main chord to C metres (instead of --unit)")
+    v = g.add_argument_group("viscous analysis (boundary layer, transition, drag)")
+    v.add_argument("--reynolds", type=float, metavar="RE",
+                   help="Reynolds number on the speed and the main chord: adds drag, "
+                   "transition and separation, viscous lift and moment")
+    v.add_argument("--viscous", action="store_true",
+                   help="the same, with the Reynolds number from --fluid, --speed and --chord "
+                   "(or --unit)")
+    v.add_argument("--critical-amplification", type=float, metavar="N",
+                   help="critical amplification factor of the e^N transition method (default 9: "
+                   "a smooth section in a quiet stream)")
+    v.add_argument("--turbulence-level", type=float, metavar="PERCENT",
+                   help="freestream turbulence level in percent, instead of "
+                   "--critical-amplification")
+    v.add_argument("--trip-upper", type=float, metavar="X",
+                   help="forced transition (a trip strip) at x/c X on the upper surface")
+    v.add_argument("--trip-lower", type=float, metavar="X",
+                   help="forced transition at x/c X on the lower surface")
     plane = g.add_mutually_exclusive_group()
     plane.add_argument("--ground", type=float, metavar="H",
                        help="plane wall (ground effect) H below the quarter chord, in outline "
@@ -150,9 +169,12 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
         plane = Boundary.free_surface(ns.free_surface)
     return OperatingPoint(alpha_deg=alpha, target_cl=ns.cl, mach=ns.mach, mach_rule=ns.mach_rule,
                           fluid=ns.fluid, density=ns.density, speed=ns.speed, depth=ns.depth,
-                          unit=ns.unit, chord=ns.chord, plane=plane,
-                          temperature=ns.temperature, salinity=ns.salinity,
-                          altitude=ns.altitude)
+                          unit=ns.unit, chord=ns.chord, plane=plane, reynolds=ns.reynolds,
+                          viscous=ns.viscous,
+                          critical_amplification=ns.critical_amplification,
+                          turbulence_level=ns.turbulence_level, trip_upper=ns.trip_upper,
+                          trip_lower=ns.trip_lower, temperature=ns.temperature,
+                          salinity=ns.salinity, altitude=ns.altitude)
 
 
 def flap_of(ns) -> Flap | None:

@@ -121,3 +121,52 @@ def reynolds_number(speed: float, chord: float, kinematic_viscosity: float) -> f
         if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
             raise InputError(f"{name} must be a positive number, got {v!r}")
     return speed * chord / kinematic_viscosity
+
+
+# The fluid presets of panelflow.conditions.fluids, at the states their densities are given for:
+# fresh and sea water at 15 °C (sea water 35 g/kg), air at sea level in the standard atmosphere.
+PRESET_STATES = {"fresh-water": ("water", 15.0, 0.0), "sea-water": ("water", 15.0, 35.0),
+                 "air": ("air", 0.0, None)}
+
+
+def preset_kinematic_viscosity(name: str, temperature_c: float | None = None,
+                               salinity: float | None = None,
+                               altitude: float | None = None) -> tuple[float, str]:
+    """Kinematic viscosity of a fluid preset (m²/s) and the sentence saying where it comes from.
+
+    Parameters
+    ----------
+    name : str
+        ``"fresh-water"``, ``"sea-water"`` or ``"air"``.
+    temperature_c, salinity, altitude : float, optional
+        The state the fluid was made for (:func:`panelflow.conditions.fluids.make_fluid`);
+        each left out takes the preset's state of :data:`PRESET_STATES`. Air at a given
+        temperature takes Sutherland's law there and the ideal-gas density at the standard
+        atmosphere's pressure of the altitude.
+
+    Raises
+    ------
+    InputError
+        For a fluid known only by its density (give the Reynolds number instead).
+    """
+    state = PRESET_STATES.get(name)
+    if state is None:
+        raise InputError(f"fluid {name!r} has no viscosity here: give the Reynolds number "
+                         "directly")
+    kind, a, b = state
+    if kind == "water":
+        t = a if temperature_c is None else temperature_c
+        s = b if salinity is None else salinity
+        nu = water_kinematic_viscosity(t, s)
+        what = ("fresh water" if not s else f"sea water of {s:g} g/kg") + f" at {t:g} °C"
+        return nu, f"{what}, Sharqawy, Lienhard & Zubair (2010): {nu:.4g} m²/s"
+    h = a if altitude is None else altitude
+    atmosphere = standard_atmosphere(h)
+    if temperature_c is None or abs(temperature_c + 273.15 - atmosphere["temperature"]) < 1e-9:
+        nu = atmosphere["kinematic_viscosity"]
+        return nu, (f"ISO 2533 standard atmosphere at {h:g} m, Sutherland's law: "
+                    f"{nu:.4g} m²/s")
+    t_k = temperature_c + 273.15
+    nu = air_dynamic_viscosity(t_k) * GAS_CONSTANT_AIR * t_k / atmosphere["pressure"]
+    return nu, (f"air at {temperature_c:g} °C and the ISO 2533 standard atmosphere's pressure "
+                f"at {h:g} m, Sutherland's law and the ideal-gas law: {nu:.4g} m²/s")

@@ -811,7 +811,7 @@ def thin_problems(outlines) -> list[str]:
     return out
 
 
-def checked_panellings(outlines, panel) -> tuple:
+def checked_panellings(outlines, panel, halves: bool = True) -> tuple:
     """Panel every body and check the result before anything is solved.
 
     Parameters
@@ -820,6 +820,9 @@ def checked_panellings(outlines, panel) -> tuple:
     panel : callable
         ``panel(outline) -> Panelling`` (for example
         :func:`panelflow.geometry.panelling.panel_outline` with the panel count bound).
+    halves : bool
+        Check the half-count panellings of the error estimate too (made once, and kept for the
+        estimate).
 
     Returns
     -------
@@ -836,7 +839,8 @@ def checked_panellings(outlines, panel) -> tuple:
     if thin:
         raise GeometryError(thin[0])
     panellings = tuple(panel(o) for o in outlines)
-    for pls in (panellings, tuple(pl.coarsened() for pl in panellings)):
+    checks = [panellings] + ([tuple(pl.coarsened() for pl in panellings)] if halves else [])
+    for pls in checks:
         found = panel_problems(pls)
         if found.problems:
             raise GeometryError(found.problems[0])

@@ -500,13 +500,78 @@ class _Pressures:
     body_cd: np.ndarray
     body_cm: np.ndarray
     note: str
+    # (n_alpha, n_nodes) skin friction over q, signed along the loop direction; None: no shear
+    friction: np.ndarray | None = None
+
+
+def _viscous_nodes(result):
+    """Viscous Cp and loop-signed skin friction at the panel nodes, per angle.
+
+    The boundary layer's stations are the panel nodes themselves (marched from the stagnation
+    point along each surface): the upper surface's flow runs against the loop direction (the
+    loop goes from the upper trailing edge over the nose), the lower surface's with it.
+    """
+    f = result.fine
+    p = f.panels
+    zn = p.nodes[:, 0] + 1j * p.nodes[:, 1]
+    cp = np.array(f.cp, float)
+    cf = np.zeros_like(cp)
+    index = {complex(z): k for k, z in enumerate(zn)}
+    for i, r in enumerate(result.viscous.results):
+        if not r.converged:
+            continue
+        for layer, sign in ((r.upper, -1.0), (r.lower, 1.0)):
+            for x, y, c, f_ in zip(layer.x, layer.y, layer.pressure_coefficient,
+                                   layer.skin_friction):
+                k = index.get(complex(x, y))
+                if k is not None:
+                    cp[i, k], cf[i, k] = c, sign * f_
+    return cp, cf
+
+
+def _viscous_pressures(result) -> _Pressures:
+    """Viscous Cp and skin friction, and the coefficients of their integrals."""
+    from panelflow.conditions.compressibility import _integrate
+
+    f = result.fine
+    p = f.panels
+    cp, cf = _viscous_nodes(result)
+    speed = np.sqrt(np.maximum(1.0 - cp, 0.0))  # |edge speed| at the nodes
+    mid = 1.0 - (0.5 * (speed[:, p.start] + speed[:, p.end])) ** 2
+    base = np.full(np.shape(f.cp_base), np.nan)
+    first, last = p.node_start[p.base_body], p.node_stop[p.base_body] - 1
+    if len(p.base_body):
+        base[:, p.base_body] = 0.5 * (cp[:, first] + cp[:, last])
+    force, moment = _integrate(p, cp, mid, base[:, p.base_body] if len(p.base_body) else
+                               np.zeros((len(cp), 0)), f.chord_line, f.reference_point)
+    # skin friction: linear along each panel, acting along it (the loop direction times the
+    # signed coefficient); a force along the panel's line has the same moment about any point
+    # as at its midpoint
+    shear = 0.5 * (cf[:, p.start] + cf[:, p.end]) * p.length * p.tangent
+    zr = complex(*f.reference_point)
+    shear_moment = (np.conj(p.mid - zr) * shear).imag
+    for k in range(p.n_bodies):
+        on = p.body == k
+        force[:, k] += shear[:, on].sum(axis=1)
+        moment[:, k] += shear_moment[:, on].sum(axis=1)
+    c = f.chord_line.length
+    rot = np.exp(-1j * np.radians(f.alpha_deg))[:, None]
+    body_cl, body_cd = (rot * force).imag / c, (rot * force).real / c
+    body_cm = -moment / c**2
+    return _Pressures(cp, mid, base, body_cl.sum(axis=1), body_cd.sum(axis=1),
+                      body_cm.sum(axis=1), body_cl, body_cd, body_cm,
+                      f"viscous pressures and skin friction of the boundary-layer analysis at "
+                      f"Reynolds number {result.viscous.reynolds:.3g}", cf)
 
 
 def _pressures(result) -> _Pressures:
-    """The incompressible Cp, or with a Mach number the corrected Cp of the result's rule."""
+    """The incompressible Cp, with a Mach number the corrected Cp of the result's rule, with the
+    viscous analysis its pressures and skin friction."""
     f = result.fine
     p = f.panels
     c = result.compressibility
+    if result.viscous is not None:
+        return _viscous_pressures(result)
     if c is None:
         g = np.asarray(f.gamma)
         mid = 1.0 - (0.5 * (g[:, p.start] + g[:, p.end])) ** 2
@@ -553,6 +618,15 @@ def _body_loads(f, cp, i, k, outline, scale, conditions, p0, ref, about) -> Body
     inward = 1j * (ze - za) / L
     force_a = inward * L * (pa + 2.0 * pm) / 6.0 * b
     force_b = inward * L * (2.0 * pm + pb) / 6.0 * b
+    if cp.friction is not None:
+        # skin-friction shear, linear along the panel: split as work-equivalent nodal loads
+        tau = q * cp.friction[i, n0:n1]  # Pa, along the loop (original node order)
+        base_panel = np.zeros(int(kind == BLUNT))  # no shear on a base
+        ta = np.r_[tau[p.start[on] - n0], base_panel]
+        tb = np.r_[tau[p.end[on] - n0], base_panel]
+        tangent = (ze - za) / L
+        force_a = force_a + tangent * L * (2.0 * ta + tb) / 6.0 * b
+        force_b = force_b + tangent * L * (ta + 2.0 * tb) / 6.0 * b
     panel_force = force_a + force_b
     nodal = np.zeros(n, complex)
     np.add.at(nodal, a, force_a)
@@ -679,6 +753,9 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
     result = as_result(result)
     i = _angle_index(result, alpha_deg)
     f = result.fine
+    if result.viscous is not None and not result.viscous.results[i].converged:
+        raise InputError(f"alpha {f.alpha_deg[i]:g} deg: the viscous iteration did not converge "
+                         "there, so there are no viscous pressures to load the structure with")
     cp = _pressures(result)
     scale = conditions.length_scale(result.chord)
     q = conditions.dynamic_pressure
@@ -702,13 +779,22 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
     fscale = q * chord * conditions.span_factor
     checks = _checks(cp, i, bodies, alpha, fscale, chord, ref, about_m,
                      (lift, drag, moments[0], moments[1:]))
-    c = result.compressibility
-    cl_c = float(f.cl_circulation[i] if c is None else c.cl[i])
+    c, v = result.compressibility, result.viscous
+    cl_c = float(v.results[i].cl if v is not None else
+                 f.cl_circulation[i] if c is None else c.cl[i])
     cl_p = float(cp.cl[i])
     notes = [f"lift from pressure integration {lift:.6g} {conditions.force_unit} (cl_p "
              f"{cl_p:.6f}); lift from circulation {cl_c * fscale:.6g} {conditions.force_unit} "
              f"(cl {cl_c:.6f}). They differ by {_percent(cl_p, cl_c)}, the panel discretisation "
              f"error; the loads carry the pressure lift so that they add up, from {cp.note}."]
+    if v is not None:
+        cd_wake = float(v.results[i].cd)
+        notes.append(
+            f"drag of the loads {drag:.6g} {conditions.force_unit} (pressure and skin friction "
+            f"integrated, cd {drag / fscale:.5f}) against the drag of the viscous analysis "
+            f"{cd_wake * fscale:.6g} {conditions.force_unit} (wake momentum, cd {cd_wake:.5f}): "
+            "the integrated surface drag carries the panel error of the pressure drag, of the "
+            "drag's own size; use cd for performance and these loads for the structure")
     cav_caution, cav_note = _cavitation(float(np.nanmin(cp.node[i])), conditions, q,
                                         result.cavitation)
     size = size_warning(chord, conditions.describe_scale(result.chord))

@@ -97,6 +97,36 @@ COLUMNS = {
                         "plane"),
     "cm_free_space": _C("moment coefficient in free space", "", "the same bodies without the "
                         "plane"),
+    # the viscous analysis (panelflow.analysis.result.VISCOUS_COLUMNS)
+    "cl_viscous": _C("viscous lift coefficient", "", "circulation lift of the surface speeds "
+                     "with the boundary layer and wake (the viscous analysis)"),
+    "cm_viscous": _C("viscous moment coefficient", "", "the viscous pressures' moment about "
+                     "the reference point, nose-up positive"),
+    "cd": _C("drag coefficient", "", "from the wake's momentum thickness far downstream "
+             "(Squire & Young, ARC R&M 1838, 1938)"),
+    "cd_friction": _C("friction drag coefficient", "", "the skin friction integrated along "
+                      "both surfaces"),
+    "cd_form": _C("form drag coefficient", "", "the drag less its friction part: the pressure "
+                  "drag of the boundary layer's displacement"),
+    "cd_squire_young": _C("trailing-edge drag coefficient", "", "the Squire-Young formula on "
+                          "the trailing-edge states of both surfaces: a check of the drag"),
+    "lift_to_drag": _C("lift-to-drag ratio", "", "viscous lift coefficient over drag "
+                       "coefficient"),
+    "transition_upper": _C("upper transition", "x/c", "where the upper boundary layer turns "
+                           "turbulent, freely or at a trip; blank: laminar to the trailing "
+                           "edge"),
+    "transition_lower": _C("lower transition", "x/c", "the same on the lower surface"),
+    "separation_upper": _C("upper separation", "x/c", "where the upper skin friction first "
+                           "turns negative; blank: none"),
+    "reattachment_upper": _C("upper reattachment", "x/c", "where the upper skin friction "
+                             "turns positive again after separating; blank: none (a "
+                             "separation without it reaches the trailing edge)"),
+    "separation_lower": _C("lower separation", "x/c", "the same on the lower surface"),
+    "reattachment_lower": _C("lower reattachment", "x/c", "the same on the lower surface"),
+    "viscous_converged": _C("viscous iteration converged", "", "1 when the coupled iteration "
+                            "converged; 0 when it did not (its numbers are then blank)"),
+    "viscous_residual": _C("viscous residual", "", "largest residual of the coupled equations "
+                           "at the last iteration"),
     # surface tables
     "body": _C("body", "", "the body's name"),
     "point": _C("point", "", "panel node number along the body, from the upper trailing edge "

@@ -244,6 +244,56 @@ def margins_text(result) -> str:
     return "".join(section(result) for section in SOLVE_SECTIONS)
 
 
+def viscous_table(result) -> str:
+    """The viscous analysis per angle: lift, moment, drag and its parts, transition, separation."""
+    v = result.viscous
+    tr = v.transition
+    trips = [f"{side} trip at x/c {x:g}" for side, x in (("upper", tr.upper_trip),
+                                                        ("lower", tr.lower_trip)) if x is not None]
+    lines = ["", f"viscous analysis at Reynolds number {v.reynolds:.4g} ({v.reynolds_source}); "
+             f"transition at amplification factor {tr.critical_amplification:.3g}"
+             + (", " + ", ".join(trips) if trips else "")]
+    rows = {k: [] for k in ("alpha_deg", "cl_viscous", "cm_viscous", "cd", "cd_friction",
+                            "cd_form", "lift_to_drag", "transition_upper", "transition_lower",
+                            "separation_upper", "separation_lower")}
+    remarks = []
+    for a, r, late in zip(result.alpha_deg, v.results, v.after_failure):
+        rows["alpha_deg"].append(f"{a:.2f}")
+        if not r.converged:
+            for k in list(rows)[1:]:
+                rows[k].append("")
+            remarks.append(f"not converged (residual {r.residual:.1e} after {r.iterations} "
+                           "iterations): no numbers")
+            continue
+        rows["cl_viscous"].append(f"{r.cl:.4f}")
+        rows["cm_viscous"].append(f"{r.cm:.5f}")
+        rows["cd"].append(f"{r.cd:.5f}")
+        rows["cd_friction"].append(f"{r.cd_friction:.5f}")
+        rows["cd_form"].append(f"{r.cd_pressure:.5f}")
+        rows["lift_to_drag"].append(f"{r.lift_to_drag:.1f}")
+        rows["transition_upper"].append(_blank(r.transition_upper)
+                                        + (" trip" if r.transition_upper_forced else ""))
+        rows["transition_lower"].append(_blank(r.transition_lower)
+                                        + (" trip" if r.transition_lower_forced else ""))
+        rows["separation_upper"].append(_blank(r.separation_upper))
+        rows["separation_lower"].append(_blank(r.separation_lower))
+        remarks.append("reached after an unconverged angle: check" if late else "")
+    cols = [TextColumn.of(k, cells) for k, cells in rows.items()]
+    if any(remarks):
+        cols.append(TextColumn("remark", "", tuple(remarks), left=True))
+    lines += text_table(cols)
+    lines.append("drag from the wake far downstream; friction: the skin friction; form: the rest "
+                 "(pressure drag of the boundary layer's displacement); trip: transition at a "
+                 "trip; separation: where the skin friction first turns negative (blank: none); "
+                 "transition blank: laminar to the trailing edge")
+    lines.append(f"limits: {v.limits}")
+    return "\n".join(lines) + "\n"
+
+
+def _blank(v: float) -> str:
+    return "" if not math.isfinite(v) else f"{v:.3f}"
+
+
 def _resolution_lines(rep) -> list[str]:
     """How well the points define the shape, in the outline's units and in % of chord."""
     if not rep.panels:  # not measured (the outline is unusable)
@@ -355,8 +405,23 @@ def compare_table(analyses, labels) -> str:
                  "lift slope exact in free space, interpolated near a plane")
     for label, r in zip(labels, results, strict=True):
         lines += [f"note: {label}: {n_}" for n_ in r.notes]
+    lines += _viscous_ranking(analyses, labels)
     lines.append("caution: " + CAUTION)
     return "\n".join(lines) + "\n"
+
+
+def _viscous_ranking(results, labels) -> list:
+    """With the viscous analysis and one angle per case (a target lift): the cases ranked by
+    lift-to-drag ratio (the drag and transition per angle are the table's viscous columns)."""
+    if not results or any(getattr(r, "viscous", None) is None for r in results):
+        return []
+    target = results[0].operating.target_cl
+    if target is None or not all(len(r) == 1 for r in results):
+        return []
+    ranked = sorted(((r.viscous.results[0].lift_to_drag, lab) for lab, r in
+                     zip(labels, results) if r.viscous.results[0].converged), reverse=True)
+    return [f"ranked by lift-to-drag ratio at viscous lift coefficient {target:g}: "
+            + "; ".join(f"{k + 1}. {lab} ({ld:.1f})" for k, (ld, lab) in enumerate(ranked))]
 
 
 def field_summary(flow, analysis) -> str:
@@ -468,3 +533,8 @@ def _cavitation_section(result) -> str:
 @add_solve_section
 def _plane_section(result) -> str:
     return "" if result.plane is None else plane_table(result)
+
+
+@add_solve_section
+def _viscous_section(result) -> str:
+    return "" if result.viscous is None else viscous_table(result)

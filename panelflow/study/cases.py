@@ -59,6 +59,13 @@ Top level
                     fields, loads) is computed with the plane.
     ``unit`` / ``chord``  the outline's length unit or the main chord in metres: the default
                     scale of the load outputs.
+    ``reynolds``    Reynolds number: adds the viscous analysis (``cl_viscous``, ``cd``,
+                    ``cd_friction``, ``cd_form``, ``lift_to_drag``, transition and separation
+                    columns); or ``viscous`` (true) with ``fluid``, ``speed`` and
+                    ``chord``/``unit`` for the Reynolds number; ``critical_amplification`` (default 9) or
+                    ``turbulence_level`` (percent), ``trip_upper`` / ``trip_lower`` (x/c).
+    ``smooth_within``  fit every body with a smoothing curve moving no point farther than this
+                    (outline units) before solving.
 
 ``[outputs]`` (file names inside the output folder; no folders)
     ``table``       a name or a list of names, ``.csv`` or ``.json``: the tidy table, one row
@@ -118,7 +125,9 @@ KEYS = {
     "flap": ("hinge", "angle", "gap", "radius"),
     "conditions": ("alpha", "cl", "panels", "keep_points", "reference_point", "error_estimate",
                    "fluid", "density", "speed", "mach", "mach_rule", "depth", "unit", "chord",
-                   "ground", "free_surface", "temperature", "salinity", "altitude"),
+                   "ground", "free_surface", "temperature", "salinity", "altitude",
+                   "reynolds", "viscous", "critical_amplification", "turbulence_level",
+                   "trip_upper", "trip_lower", "smooth_within"),
     "outputs": ("table", "polar_figure", "cp_figure", "field", "loads"),
     "polar_figure": ("file", "sections", "title"),
     "cp_figure": ("file", "alpha", "sections", "title"),
@@ -775,21 +784,34 @@ def _conditions(ck: _Checker, doc: dict):
     elif "free_surface" in c:
         plane = Boundary.free_surface(ck.number(c["free_surface"], path + ("free_surface",),
                                                 0.0, low_open=True))
+    viscous = {}
+    for key in ("reynolds", "critical_amplification", "turbulence_level", "trip_upper",
+                "trip_lower"):
+        if key in c:
+            viscous[key] = ck.number(c[key], path + (key,), 0.0, low_open=True)
+    if "viscous" in c:
+        viscous["viscous"] = ck.boolean(c["viscous"], path + ("viscous",))
+    smooth = (ck.number(c["smooth_within"], path + ("smooth_within",), 0.0, low_open=True)
+              if "smooth_within" in c else None)
+    from_fluid = viscous.get("viscous", False) and "reynolds" not in viscous
     try:
         operating = OperatingPoint(
             alpha_deg=tuple(alpha), target_cl=target, mach=mach, mach_rule=rule,
-            fluid=fluid if depth is not None else None, speed=speed if depth is not None else None,
-            depth=depth, plane=plane, **(dict(state) if depth is not None else {}))
+            fluid=fluid if depth is not None or from_fluid else None,
+            speed=speed if depth is not None or from_fluid else None, depth=depth, plane=plane,
+            unit=unit if from_fluid else None, chord=chord if from_fluid else None, **viscous,
+            **(dict(state) if depth is not None or from_fluid else {}))
     except InputError as exc:
         raise ck.error(path, str(exc)) from None
     settings = dict(operating=operating, panels=None if keep else panels, reference_point=ref,
-                    error_estimate=est)
+                    error_estimate=est, smoothing=smooth)
     record = {"alpha_deg": alpha, "cl": target, "panels": None if keep else panels,
               "keep_points": keep, "reference_point": list(ref) if ref else None,
               "error_estimate": est, "fluid": fluid, "density": density, "speed": speed,
               "mach": mach, "mach_rule": rule if mach is not None else None, "depth": depth,
               "unit": unit, "chord": chord, **dict(state),
-              "plane": ({"kind": plane.kind, "distance": plane.distance} if plane else None)}
+              "plane": ({"kind": plane.kind, "distance": plane.distance} if plane else None),
+              **{k: v for k, v in viscous.items()}, "smooth_within": smooth}
     return settings, record, (fluid, state), density, speed, unit, chord
 
 

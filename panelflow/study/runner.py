@@ -108,7 +108,7 @@ class BodySource:
         return rec
 
 
-_PROBLEM_KEYS = ("panels", "error_estimate", "reference_point", "flap")
+_PROBLEM_KEYS = ("panels", "error_estimate", "reference_point", "flap", "smoothing")
 
 
 def split_settings(alpha_deg=None, **settings):
@@ -151,6 +151,8 @@ class SectionTask:
     reference_point : (float, float) or None
         Moment reference point; default the quarter chord.
     flap : Flap or None
+    smoothing : float or None
+        Smoothing distance of the bodies (see :class:`Problem`).
     """
 
     label: str
@@ -160,6 +162,7 @@ class SectionTask:
     error_estimate: bool = True
     reference_point: tuple | None = None
     flap: Flap | None = None
+    smoothing: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "bodies", tuple(self.bodies))
@@ -186,6 +189,8 @@ class SectionTask:
             rec["reference_point"] = list(self.reference_point)
         if self.flap is not None:
             rec["flap"] = self.flap.record()
+        if self.smoothing is not None:
+            rec["smoothing"] = self.smoothing
         rec.update(self.operating.record())
         return rec
 
@@ -304,7 +309,7 @@ def task_problem(task: SectionTask, alpha_deg=None, error_estimate: bool | None 
     est = task.error_estimate if error_estimate is None else error_estimate
     return Problem(tuple(build_bodies(task)), operating, panels=task.panels,
                    error_estimate=est, reference_point=task.reference_point, flap=task.flap,
-                   label=task.label)
+                   smoothing=task.smoothing, label=task.label)
 
 
 def solve_task(task: SectionTask, alpha_deg=None, error_estimate: bool | None = None):
