@@ -401,7 +401,7 @@ def parse_design_case(text: str, path) -> DesignCase:
         (with its line and key), a missing file.
     """
     from panelflow.geometry.readers import load_outlines
-    from panelflow.geometry.sections import parse_spec
+    from panelflow.geometry.specs import parse_spec
 
     p = Path(path)
     name = p.name

@@ -551,7 +551,7 @@ def _shown(path, base) -> str:
 
 def _expand_specs(ck: _Checker, text: str, path) -> list:
     from panelflow.geometry.families import expand_family
-    from panelflow.geometry.sections import parse_spec
+    from panelflow.geometry.specs import parse_spec
 
     try:
         members = expand_family(text)
@@ -563,7 +563,7 @@ def _expand_specs(ck: _Checker, text: str, path) -> list:
         except PanelflowError as exc:
             raise ck.error(path, str(exc)) from None
         if outline is None:
-            from panelflow.geometry.sections import SPEC_HELP
+            from panelflow.geometry.specs import SPEC_HELP
 
             raise ck.error(path, f"{m!r} is not a section spec ({SPEC_HELP}); a file goes under "
                            "'file'")
