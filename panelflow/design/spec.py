@@ -101,15 +101,7 @@ _OBJECTIVE_KEYS = {"inception-speed": {"kind", "cl"},
 class _DesignChecker(_Checker):
     """The case checker with the design schema's keys."""
 
-    def keys(self, table: dict, kind: str, path) -> None:
-        allowed = DESIGN_KEYS[kind]
-        for key in table:
-            if key in allowed:
-                continue
-            close = difflib.get_close_matches(key, allowed, n=1, cutoff=0.6)
-            hint = (f"did you mean {close[0]!r}?" if close
-                    else f"valid keys here: {', '.join(allowed)}")
-            raise self.error(tuple(path) + (key,), f"unknown key {key!r}; {hint}")
+    known_keys = DESIGN_KEYS
 
 
 @dataclass(frozen=True)
