@@ -20,7 +20,7 @@ from exact import KarmanTrefftz, ellipse_cp
 import panelflow as pf
 from panelflow.analysis.accuracy import INPUT_FACTOR
 from panelflow.geometry.outline import Outline
-from panelflow.geometry.sections import parse_spec
+from panelflow.geometry.specs import parse_spec
 
 ROOT = Path(__file__).resolve().parent.parent
 ALPHAS = np.array([0.0, 4.0, 8.0])

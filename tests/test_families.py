@@ -21,7 +21,7 @@ from panelflow.geometry.families import (
     is_family,
     is_pattern,
 )
-from panelflow.geometry.sections import parse_spec
+from panelflow.geometry.specs import parse_spec
 
 
 @pytest.mark.parametrize("text, members", [

@@ -91,3 +91,32 @@ def test_the_check_sees_an_upward_import(tmp_path, text, upward):
     probe.write_text(text)
     found = [mod for _, mod in _imports(probe, root) if _stage(mod) > STAGES.index("flow")]
     assert bool(found) == upward, found
+
+
+def test_no_module_imports_its_own_importer():
+    # within a stage too, the data flows one way: no chain of imports (module level or inside a
+    # function) leads from a module back to itself. Imports of a subpackage's __init__ are left
+    # out (a package imports its modules to re-export them).
+    graph = {}
+    for path in MODULES:
+        if path.name == "__init__.py":
+            continue
+        name = _module_name(path)
+        graph[name] = {mod for _, mod in _imports(path)
+                       if mod != name and not (PACKAGE.parent / mod.replace(".", "/")).is_dir()}
+    cycles = []
+    state = {}
+
+    def visit(node, trail):
+        state[node] = "open"
+        for nxt in sorted(graph.get(node, ())):
+            if state.get(nxt) == "open":
+                cycles.append(" -> ".join(trail[trail.index(nxt):] + [nxt]))
+            elif nxt in graph and nxt not in state:
+                visit(nxt, trail + [nxt])
+        state[node] = "done"
+
+    for node in sorted(graph):
+        if node not in state:
+            visit(node, [node])
+    assert not cycles, "import cycles: " + "; ".join(cycles)

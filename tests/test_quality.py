@@ -20,7 +20,7 @@ from panelflow.geometry import quality
 from panelflow.geometry.outline import Outline
 from panelflow.geometry.panelling import given_points, respline
 from panelflow.geometry.readers import read_outline_table
-from panelflow.geometry.sections import parse_spec
+from panelflow.geometry.specs import parse_spec
 
 ROOT = Path(__file__).resolve().parent.parent
 _spec = importlib.util.spec_from_file_location("demo", ROOT / "scripts" / "make_demo_geometries.py")

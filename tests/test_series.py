@@ -11,7 +11,8 @@ import panelflow as pf
 from panelflow.errors import InputError
 from panelflow.geometry.families import expand_family
 from panelflow.geometry.measure import measure
-from panelflow.geometry.sections import naca4, parse_spec
+from panelflow.geometry.sections import naca4
+from panelflow.geometry.specs import parse_spec
 from panelflow.geometry.series import (TRAILING_EDGE_SLOPES, a_series_ideal_angle_deg,
                                        a_series_mean_line, leading_edge_radius, modified_thickness,
                                        modified_thickness_coefficients, naca16)

@@ -292,7 +292,7 @@ def _cmd_check(ns) -> int:
 
 def _cmd_section(ns) -> int:
     from panelflow.geometry.readers import write_outline_table
-    from panelflow.geometry.sections import parse_spec
+    from panelflow.geometry.specs import parse_spec
 
     outline = (parse_spec(ns.spec, n_points=ns.points) if ns.points is not None
                else parse_spec(ns.spec))

@@ -159,6 +159,27 @@ def _graded(density: np.ndarray, s: np.ndarray, n_panels: int, closed: bool) -> 
     return density
 
 
+def _fine_samples(spl, t_end: float, m: int):
+    """Parameter, arc length and curvature at ``m + 1`` even parameter steps along the curve.
+
+    Kept on the spline: the half-count panelling of the error estimate (and any other count up to
+    ``2000 / _SAMPLES_PER_PANEL`` panels) samples the same curve at the same points.
+    """
+    cache = spl.__dict__.setdefault("_fine_samples", {})
+    done = cache.get((t_end, m))
+    if done is None:
+        t = np.linspace(0.0, t_end, m + 1)
+        d1, d2 = spl.derivatives(t)
+        speed = np.hypot(d1[:, 0], d1[:, 1])
+        kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
+        # arc length along the fine parameter grid (trapezoid)
+        s = np.r_[0.0, np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t))]
+        for a in (t, s, kappa):
+            a.setflags(write=False)
+        done = cache[(t_end, m)] = (t, s, kappa)
+    return done
+
+
 def respline(outline: Outline, n_panels: int, parameter: str = "chord",
              curve=None) -> Panelling:
     """Re-panel an outline with ``n_panels`` panels on a smooth spline through its points.
@@ -185,12 +206,7 @@ def respline(outline: Outline, n_panels: int, parameter: str = "chord",
         raise GeometryError(f"unknown spline parameter {parameter!r}; use one of {PARAMETERS}")
     spl, t_end = curve if curve is not None else _spline(outline, parameter)
     m = max(2000, _SAMPLES_PER_PANEL * n_panels)  # fine samples for curvature and arc length
-    t = np.linspace(0.0, t_end, m + 1)
-    d1, d2 = spl.derivatives(t)
-    speed = np.hypot(d1[:, 0], d1[:, 1])
-    kappa = np.abs(d1[:, 0] * d2[:, 1] - d1[:, 1] * d2[:, 0]) / speed**3
-    # arc length along the fine parameter grid (trapezoid)
-    s = np.r_[0.0, np.cumsum(0.5 * (speed[1:] + speed[:-1]) * np.diff(t))]
+    t, s, kappa = _fine_samples(spl, t_end, m)
     chord = outline.chord
     density = 1.0 + _CURVATURE_WEIGHT * (kappa * chord) ** _CURVATURE_POWER
     # Smooth the curvature term over about one mean panel so spacing changes gradually.

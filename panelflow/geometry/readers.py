@@ -80,7 +80,7 @@ import numpy as np
 
 from panelflow.errors import GeometryError, InputError
 from panelflow.geometry.outline import Outline
-from panelflow.geometry.sections import SPEC_HELP, parse_spec
+from panelflow.geometry.specs import SPEC_HELP, parse_spec
 from panelflow.files import atomic_write_text, check_input, read_input
 
 __all__ = [

@@ -1,7 +1,7 @@
 """Built-in sections from published equations.
 
 Every function returns an :class:`~panelflow.geometry.outline.Outline` whose ``name`` and ``source`` are
-the section's spec (see :func:`parse_spec`), so a result can always be traced back to the text
+the section's spec (see :func:`panelflow.geometry.specs.parse_spec`), so a result can always be traced back to the text
 that makes it again.
 
 Spec syntax
@@ -30,8 +30,6 @@ the map's own coordinates (chord close to 4).
 
 from __future__ import annotations
 
-import re
-
 import numpy as np
 
 from panelflow.errors import GeometryError, InputError
@@ -46,13 +44,8 @@ __all__ = [
     "ellipse",
     "joukowski",
     "karman_trefftz",
-    "parse_spec",
-    "SPEC_HELP",
 ]
 
-SPEC_HELP = ("naca0012, naca2412, naca23012, naca0012-closed, naca0012-64, naca16-212, "
-             "naca0010+a-series:0.8,0.3, circle, circle:R, ellipse:A,B, joukowski:XC,YC, "
-             "karman-trefftz:XC,YC,TAU")
 
 CLOSED_SUFFIX = "-closed"
 MIN_SECTION_POINTS = 11  # fewer cannot show a leading edge and a trailing edge at once
@@ -438,87 +431,14 @@ def _map_outline(z: np.ndarray, te: float, spec: str) -> Outline:
         raise InputError(f"{spec}: the centre gives no usable section ({exc})") from None
 
 
-# ---------------------------------------------------------------------------------- spec parser
-_NACA_RE = re.compile(r"naca([^:/\\.]*)", re.IGNORECASE)
-_PARAM_RE = re.compile(r"(circle|ellipse|joukowski|karman-trefftz)(?::(.*))?", re.IGNORECASE)
-_NACA_BODY_RE = re.compile(r"(\d+)(-closed)?", re.IGNORECASE)
-_PARAM_NAMES = {
-    "circle": "circle or circle:R",
-    "ellipse": "ellipse:A,B",
-    "joukowski": "joukowski:XC,YC",
-    "karman-trefftz": "karman-trefftz:XC,YC,TAU",
-}
+def __getattr__(name):
+    # the spec parser moved to panelflow.geometry.specs (above this module and the series, so
+    # that neither imports the other's caller); the old names keep working for one release
+    if name in ("parse_spec", "SPEC_HELP"):
+        import importlib
+        import warnings
 
-
-def _numbers(text: str, params: str | None, count: tuple[int, ...], kind: str) -> list[float]:
-    values = [] if params is None or params.strip() == "" else params.split(",")
-    if len(values) not in count:
-        raise InputError(f"{text}: expected {_PARAM_NAMES[kind]}")
-    out = []
-    for v in values:
-        try:
-            f = float(v)
-        except ValueError:
-            raise InputError(f"{text}: {v.strip()!r} is not a number "
-                             f"(expected {_PARAM_NAMES[kind]})") from None
-        if not np.isfinite(f):
-            raise InputError(f"{text}: {v.strip()!r} is not a finite number")
-        out.append(f)
-    return out
-
-
-def parse_spec(text: str, n_points: int | None = None) -> Outline | None:
-    """Build the section a spec names, or return None when ``text`` is not a spec.
-
-    Parameters
-    ----------
-    text : str
-        A spec (see the module docstring) or anything else, such as a file path. Text with a
-        path separator, or a NACA-like name with a file extension (``naca0012.dat``), is never
-        a spec.
-    n_points : int, optional
-        Number of points, passed to the section function; its default when None.
-
-    Returns
-    -------
-    Outline or None
-
-    Raises
-    ------
-    InputError
-        The text is a spec but malformed, e.g. ``naca2`` or ``ellipse:1``.
-    """
-    t = str(text).strip()
-    kw = {} if n_points is None else {"n_points": n_points}
-    if "/" in t or "\\" in t:
-        return None
-    from panelflow.geometry.series import parse_series_spec  # imports this module
-
-    outline = parse_series_spec(t, n_points)
-    if outline is not None:
-        return outline
-    m = _NACA_RE.fullmatch(t)
-    if m:
-        body = _NACA_BODY_RE.fullmatch(m.group(1))
-        if body is None or len(body.group(1)) not in (4, 5):
-            raise InputError(f"{t}: a NACA spec needs 4 or 5 digits (e.g. naca0012, naca23012), "
-                             f"optionally followed by -IM (modified thickness, e.g. naca0012-64) "
-                             f"and {CLOSED_SUFFIX}, or is a 16-series naca16-LTT")
-        digits, closed = body.group(1), body.group(2) is not None
-        make = naca4 if len(digits) == 4 else naca5
-        return make(digits, closed_te=closed, **kw)
-    m = _PARAM_RE.fullmatch(t)
-    if not m:
-        return None
-    kind, params = m.group(1).lower(), m.group(2)
-    if kind == "circle":
-        vals = _numbers(t, params, (0, 1), kind)
-        return circle(*vals, **kw)
-    if kind == "ellipse":
-        a, b = _numbers(t, params, (2,), kind)
-        return ellipse(a, b, **kw)
-    if kind == "joukowski":
-        xc, yc = _numbers(t, params, (2,), kind)
-        return joukowski(complex(xc, yc), **kw)
-    xc, yc, tau = _numbers(t, params, (3,), kind)
-    return karman_trefftz(complex(xc, yc), tau, **kw)
+        warnings.warn(f"panelflow.geometry.sections.{name} has moved to "
+                      f"panelflow.geometry.specs.{name}", DeprecationWarning, stacklevel=2)
+        return getattr(importlib.import_module("panelflow.geometry.specs"), name)
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")

@@ -33,7 +33,7 @@ prescribed velocity distributions whose defining functions are not published in 
 and panelflow carries no copy of their ordinate tables (read a coordinate table of the section
 instead).
 
-Spec syntax (panelflow's own, added to :func:`panelflow.geometry.sections.parse_spec`)
+Spec syntax (panelflow's own, read by :func:`panelflow.geometry.specs.parse_spec`)
 -------------------------------------------------------------------------------------
 ==========================================  ==================================================
 ``naca0012-64``, ``naca2412-34``            modified 4-digit thickness ``-IM`` under a 4- or
@@ -56,6 +56,7 @@ import numpy as np
 
 from panelflow.errors import InputError
 from panelflow.geometry.outline import Outline
+from panelflow.geometry import sections as _sections_module
 from panelflow.geometry.sections import DEFAULT_POINTS
 
 __all__ = [
@@ -257,10 +258,7 @@ def a_series_ideal_angle_deg(a: float, cl_ideal: float) -> float:
 
 # ---------------------------------------------------------------------------------- sections
 def _sections():
-    # imported here: sections.py imports this module lazily from its spec parser
-    from panelflow.geometry import sections
-
-    return sections
+    return _sections_module
 
 
 def _thickness_digits(t_digits: str, spec: str) -> float:

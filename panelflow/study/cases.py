@@ -422,6 +422,9 @@ def _where(path) -> str:
 class _Checker:
     """Error messages with file, line and key."""
 
+    # the keys each kind of table may hold (a design case file's checker has its own)
+    known_keys = KEYS
+
     def __init__(self, name: str, lines: KeyLines):
         self.name = name
         self.lines = lines
@@ -432,7 +435,7 @@ class _Checker:
         return InputError(f"{loc}: {_where(path)}: {message}")
 
     def keys(self, table: dict, kind: str, path) -> None:
-        allowed = KEYS[kind]
+        allowed = self.known_keys[kind]
         for key in table:
             if key in allowed:
                 continue
@@ -557,7 +560,7 @@ def _shown(path, base) -> str:
 
 def _expand_specs(ck: _Checker, text: str, path) -> list:
     from panelflow.geometry.families import expand_family
-    from panelflow.geometry.sections import parse_spec
+    from panelflow.geometry.specs import parse_spec
 
     try:
         members = expand_family(text)
@@ -569,7 +572,7 @@ def _expand_specs(ck: _Checker, text: str, path) -> list:
         except PanelflowError as exc:
             raise ck.error(path, str(exc)) from None
         if outline is None:
-            from panelflow.geometry.sections import SPEC_HELP
+            from panelflow.geometry.specs import SPEC_HELP
 
             raise ck.error(path, f"{m!r} is not a section spec ({SPEC_HELP}); a file goes under "
                            "'file'")

@@ -245,7 +245,7 @@ def section_tasks(sources, alpha_deg, base=None, **settings) -> list:
     list of SectionTask
     """
     from panelflow.geometry.families import expand_arguments
-    from panelflow.geometry.sections import parse_spec
+    from panelflow.geometry.specs import parse_spec
 
     operating, problem = split_settings(alpha_deg, **settings)
     tasks = []
