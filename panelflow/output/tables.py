@@ -39,8 +39,8 @@ from panelflow.version import __version__
 from panelflow.errors import InputError
 from panelflow.analysis.result import as_result
 from panelflow.output.columns import describe, with_sidecar, write_sidecar
-from panelflow.output.writers import (CAUTION, POLAR_COLUMNS, atomic_write_text, check_outputs,
-                                     peak_bodies, polar_columns)
+from panelflow.output.writers import (CAUTION, POLAR_COLUMNS, _floats, atomic_write_text,
+                                     check_outputs, peak_bodies, polar_columns, register_writer)
 
 __all__ = ["POLAR_COLUMNS", "SECTION_COLUMNS", "Polar", "lift_line", "Table", "polar", "polar_rows", "tidy_table",
            "TABLE_WRITERS", "check_table_outputs", "write_table", "write_table_csv",
@@ -481,3 +481,19 @@ def _column(values):
     except (TypeError, ValueError):
         return ["" if v is None else str(v) for v in values]
     return np.array(out, float)
+
+
+# The polar CSV writer lives here, beside the table it writes, so that writers.py need not
+# import this module (which imports it); panelflow/output/__init__.py imports this module, so
+# the writer is registered whenever any output module is.
+@register_writer(".csv")
+def write_polar_csv(result, path, overwrite=False) -> Path:
+    """Write one row per angle as CSV (one header row: the columns of
+    :func:`polar`), its notes beside it in ``NAME.about.json``."""
+    result = as_result(result)
+    ref = result.reference_point
+    notes = [f"chord {result.chord:.9g} (outline units); moments about ({ref[0]:.9g}, "
+             f"{ref[1]:.9g}), nose-up positive", *result.notes]
+    extra = {"bodies": [o.name for o in result.outlines], "chord": result.chord,
+             "reference_point": _floats(ref)}
+    return write_table_csv(polar(result).table(), path, overwrite, notes, extra)

@@ -173,21 +173,6 @@ def write_json(result, path, overwrite=False) -> Path:
     return atomic_write_text(path, analysis_json(result), overwrite)
 
 
-@register_writer(".csv")
-def write_polar_csv(result, path, overwrite=False) -> Path:
-    """Write one row per angle as CSV (one header row: the columns of
-    :func:`panelflow.output.tables.polar`), its notes beside it in ``NAME.about.json``."""
-    from panelflow.output.tables import polar, write_table_csv
-
-    result = as_result(result)
-    ref = result.reference_point
-    notes = [f"chord {result.chord:.9g} (outline units); moments about ({ref[0]:.9g}, "
-             f"{ref[1]:.9g}), nose-up positive", *result.notes]
-    extra = {"bodies": [o.name for o in result.outlines], "chord": result.chord,
-             "reference_point": _floats(ref)}
-    return write_table_csv(polar(result).table(), path, overwrite, notes, extra)
-
-
 def check_outputs(paths, overwrite=False, registry=None, what="output", expand=None) -> None:
     """:func:`panelflow.files.check_outputs` with the result writers as the default registry
     (a CSV file's notes beside it included)."""
