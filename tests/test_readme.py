@@ -152,7 +152,8 @@ def _quick(argv: list) -> list:
 
 
 def run_command(command: str, quick: bool) -> tuple:
-    """(exit code, stdout) of one README command, run the way the README says."""
+    """(exit code, what it printed on stdout and stderr) of one README command, run the way
+    the README says."""
     words = _words(command)
     if words[0] == "panelflow":
         argv = words[1:]
@@ -178,7 +179,8 @@ def run_command(command: str, quick: bool) -> tuple:
     if quick:
         argv = _quick(argv)
     out = io.StringIO()
-    with contextlib.redirect_stdout(out):
+    # what a terminal shows: the report on stdout and the "wrote FILE" lines on stderr
+    with contextlib.redirect_stdout(out), contextlib.redirect_stderr(out):
         code = main(argv)
     return code, out.getvalue()
 
