@@ -132,7 +132,7 @@ def test_unknown_table_format(analyses, tmp_path):
 def test_polar_figure_objects(analyses):
     fig = plots._build_polar_figure(list(analyses.values()))
     ax_cl, ax_cm, ax_cp = fig.axes[:3]
-    assert [ax.get_ylabel() for ax in (ax_cl, ax_cm, ax_cp)] == ["Cl", "Cm", "Cp min"]
+    assert [ax.get_ylabel() for ax in (ax_cl, ax_cm, ax_cp)] == ["Cl", "Cm", "lowest Cp"]
     assert ax_cp.yaxis_inverted() and not ax_cl.yaxis_inverted()  # suction up
     legend = [t.get_text() for t in ax_cl.get_legend().get_texts()]
     assert legend == list(analyses)
