@@ -62,6 +62,45 @@ def test_limits(argv, fragment, here, capsys):
     assert out == "" and not (here / "r.json").exists()
 
 
+# Found by a hostile-user trial: each printed a traceback or a meaningless result with exit 0.
+@pytest.mark.parametrize("argv, fragment", [
+    (("circle:1e300", "--alpha", "4"), "beyond +/-1e+09"),  # once OverflowError
+    (("naca0012@scale=1e12", "--alpha", "4"), "beyond +/-1e+09"),
+    (("naca0012@pitch=1e300", "--alpha", "4"), "within +/-180"),  # once cl -5.48, exit 0
+    (("naca0012@name=", "--alpha", "4"), "name= needs a name"),
+    (("naca9999", "--alpha", "4"), "99 % thick"),  # a 99 %-thick "section", exit 0
+    (("naca16-999", "--alpha", "4"), "99 % thick"),
+    (("naca0012", "--alpha", "4", "--mach", "0"), "leave it out"),  # once Cp* nan
+    (("naca0012", "--alpha", "4", "--mach", "1e-300"), "leave it out"),  # once Cp* -inf
+    (("naca0012", "--alpha", "4", "--mach-rule", "laitone"), "needs a Mach number"),
+    (("naca0012", "--alpha", "4", "--flap-gap", "0.01"), "--flap XH,ANGLE"),
+    (("naca0012", "--alpha", "4", "--keep-points", "--panels", "100"), "--keep-points"),
+    (("naca0012", "--alpha", "4", "--flap", "0.7,10", "--flap-gap", "1e-300"), "flap gap"),
+    (("naca0012", "--alpha", "4", "--smooth-within", "10"), "at most 1 %"),
+    (("naca0012", "--alpha", "4", "--ref", "1e300,0"), "reference point"),
+    (("naca0012", "--cl", "50"), "target lift"),
+    (("naca0012", "--alpha", "4", "--fluid", "sea-water", "--speed", "5", "--depth", "1e300"),
+     "depth (m)"),
+    (("naca0012", "--alpha", "4", "--density", "1000", "--speed", "5", "--depth", "1"),
+     "density alone"),  # once named the internal "user" fluid
+    (("naca0012", "--alpha", "4", "--reynolds", "1e6", "--viscous", "--fluid", "sea-water",
+      "--speed", "5", "--chord", "0.2"), "the Reynolds number is given"),
+])
+def test_trial_refusals(argv, fragment, here, capsys):
+    out = refused(capsys, "solve", *argv, "-o", "r.json", fragment=fragment)
+    assert out == "" and not (here / "r.json").exists()
+
+
+@pytest.mark.parametrize("extra, fragment", [
+    (("--speed", "1e300"), "speed (m/s)"),  # once OverflowError
+    (("--speed", "8", "--chord", "1e300"), "chord (m)"),  # once a JSON ValueError on nan
+])
+def test_trial_load_refusals(extra, fragment, here, capsys):
+    refused(capsys, "loads", str(FOIL), "--alpha", "4", "--fluid", "sea-water", *extra,
+            "-o", "l.json", fragment=fragment)
+    assert not (here / "l.json").exists()
+
+
 def test_section_points_zero_is_refused(here, capsys):
     # once wrote 201 points without a word
     refused(capsys, "section", "naca0012", "--points", "0", "-o", "s.dat", fragment="0")

@@ -52,7 +52,7 @@ from typing import Callable
 import numpy as np
 
 from panelflow.errors import GeometryError, InputError
-from panelflow.geometry.outline import Outline
+from panelflow.geometry.outline import MAX_COORDINATE, Outline
 from panelflow.geometry.specs import SPEC_HELP, parse_spec
 from panelflow.files import atomic_write_text, check_input, read_input
 
@@ -70,9 +70,6 @@ READERS: dict[str, Reader] = {}
 
 _SPLIT = re.compile(r"[,\s]+")
 _COLUMN_LABEL = re.compile(r"[(\[]?[xy]([^a-z].*)?", re.IGNORECASE)
-# Largest coordinate read (any unit): a 10 m chord in micrometres is 1e7; far larger numbers
-# are a corrupt or wrong file, and squares of numbers near 1e154 overflow.
-MAX_COORDINATE = 1e9
 _BINARY_PROBE = 8192  # bytes looked at for NUL bytes; text tables never hold one
 
 
