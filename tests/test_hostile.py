@@ -101,6 +101,27 @@ def test_trial_load_refusals(extra, fragment, here, capsys):
     assert not (here / "l.json").exists()
 
 
+@pytest.mark.parametrize("argv, fragment", [
+    (("field", "naca0012", "--alpha", "2", "--streamlines", "100000", "--plot", "f.png"),
+     "--streamlines 100000"),  # once ran for minutes
+    (("field", "naca0012", "--alpha", "2", "--points", "p.csv", "--window", "-1,2,-1,1",
+      "-o", "f.csv"), "--window"),  # once ignored
+    (("inverse", str(FOIL), "--plateau=-0.6,0.05,0.4,0.8", "--alpha", "2", "--functions",
+      "5000", "-o", "i.dat"), "5000 shape functions"),  # once ran for minutes
+    (("inverse", str(FOIL), "--plateau=-0.6,0.05,0.4,0.8", "--surface", "upper", "--alpha",
+      "2", "--functions", "0", "-o", "i.dat"), "0 shape functions"),  # once accepted
+])
+def test_trial_command_limits(argv, fragment, here, capsys):
+    (here / "p.csv").write_text("x,y\n0.5,0.5\n")
+    refused(capsys, *argv, fragment=fragment)
+    assert not any((here / n).exists() for n in ("f.png", "f.csv", "i.dat"))
+
+
+def test_workers_beyond_the_limit(here, capsys):
+    with pytest.raises(InputError, match="at most 256"):
+        runner.make_executor(workers=100_000)
+
+
 def test_section_points_zero_is_refused(here, capsys):
     # once wrote 201 points without a word
     refused(capsys, "section", "naca0012", "--points", "0", "-o", "s.dat", fragment="0")
