@@ -117,6 +117,15 @@ def test_trial_command_limits(argv, fragment, here, capsys):
     assert not any((here / n).exists() for n in ("f.png", "f.csv", "i.dat"))
 
 
+def test_outline_with_too_many_points(here, capsys):
+    # a 400 000-point table once ran for minutes with no word; the cap is on one body's points
+    import numpy as np
+
+    t = np.linspace(0.0, 2.0 * np.pi, 100_002)[:-1]
+    np.savetxt(here / "scan.dat", np.c_[0.5 + 0.5 * np.cos(t), 0.06 * np.sin(t)], fmt="%.9f")
+    refused(capsys, "check", "scan.dat", fragment="at most 100000 per body")
+
+
 def test_workers_beyond_the_limit(here, capsys):
     with pytest.raises(InputError, match="at most 256"):
         runner.make_executor(workers=100_000)
