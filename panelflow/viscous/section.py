@@ -34,6 +34,9 @@ COLD_STEP = 1.5
 WARM_BUDGET = 30
 # Newton iterations of each try at a polar's angles after one failed
 AFTER_FAILURE = 40
+# smallest spacing of boundary-layer stations near the trailing edge, and the wake's first
+# step, in mean panel lengths (see simultaneous.station_nodes)
+STATION_SPACING = 0.5
 
 
 def check_supported(system: System) -> None:
@@ -163,9 +166,12 @@ def solve(panels_or_system, alpha_deg: float, reynolds: float,
 def _coupled(geo: _Geometry, alpha: float, re_unit: float, transition: Transition):
     system = geo.system
     gamma = system.gamma(alpha)[0]
-    wake = wake_nodes(system, gamma, alpha, geo.chord_line.length, geo.n_wake, WAKE_LENGTH)
+    spacing = STATION_SPACING * geo.arc[-1] / (len(geo.arc) - 1)
+    wake = wake_nodes(system, gamma, alpha, geo.chord_line.length, geo.n_wake, WAKE_LENGTH,
+                      first_step=spacing)
     influence = displacement.build(system, gamma, alpha, wake)
-    return sim.Coupled(influence, gamma, geo.arc, geo.xc, re_unit, transition, geo.base), gamma
+    return sim.Coupled(influence, gamma, geo.arc, geo.xc, re_unit, transition, geo.base,
+                       min_spacing=spacing), gamma
 
 
 def _solve(geo, alpha, reynolds, transition, warm_start, max_iterations,
@@ -255,6 +261,8 @@ def _layer(name, geo, coupled, sol, idx, xc_nodes):
         cf[wall] = closures.turbulent_array(h[wall], re * ue[wall] * theta[wall],
                                             np.zeros(int(wall.sum()), bool))[0]
     nodes = lay.node[idx]
+    if name != "wake":
+        nodes = coupled.kept[nodes]
     if name == "wake":
         z = coupled.wake_nodes[nodes - coupled.m_nodes]
         theta, ds = 2.0 * theta, 2.0 * theta * h  # the whole wake
