@@ -1,4 +1,4 @@
-"""Viscous-inviscid coupling: one Newton iteration on the whole boundary layer, wake and outer flow.
+"""Viscous-inviscid coupling: one Newton iteration on the boundary layer, wake and outer flow.
 
 Unknowns at every station (both surfaces from the stagnation point, then the wake): ln(theta),
 the shape factor H, the third variable (amplification factor N while laminar, entrainment
@@ -80,6 +80,9 @@ CALM = 0.3
 # [-MOVE_MARGIN, 1 + MOVE_MARGIN].
 FRACTION_RANGE = (-0.5, 1.5)
 MOVE_MARGIN = 0.1
+# Newton tolerance of the direct marches that start the iteration (an estimate; the march's
+# default, 1e-10, cost a quarter of a converged point's time)
+START_TOLERANCE = 1e-3
 # a laminar fraction for an interval in which N does not reach the critical value
 NO_CROSSING = 10.0
 
@@ -596,21 +599,31 @@ class Coupled:
                     vals.append(np.array([value]))
             band, ab = _banded(np.concatenate(rows), np.concatenate(cols),
                                np.concatenate(vals), size)
-            ncols = 1 + (len(st) if side < 2 else n)
+            # right-hand sides: the residuals, one per own mass defect, and for the wake three
+            # unit vectors at its first station's rows (the trailing-edge stations' part
+            # follows from them: a few columns instead of one per body station)
+            ncols = 1 + len(st) + (3 if side == 2 else 0)
             rhs = np.zeros((size, ncols))
             rhs[:, 0] = np.concatenate([-r[st, :3], np.zeros((len(st), 1))], axis=1).ravel()
-            own = 1 + (li if side < 2 else st)
-            rhs[4 * li + 3, own] = 1.0
+            rhs[4 * li + 3, 1 + li] = 1.0
             if side == 2:
-                for e, dd in wake_links.items():
-                    s_e = sides[lay.side[e]]
-                    x_e = solved[lay.side[e]][4 * local[e]:4 * local[e] + 4]
-                    rhs[4 * local[w0]:4 * local[w0] + 3, 0] -= dd @ x_e[:, 0]
-                    rhs[4 * local[w0]:4 * local[w0] + 3, 1 + s_e] -= dd @ x_e[:, 1:]
+                rows = 4 * local[w0] + np.arange(3)
+                rhs[rows, 1 + len(st) + np.arange(3)] = 1.0
             try:
                 x = scipy.linalg.solve_banded(band, ab, rhs, check_finite=False)
             except (np.linalg.LinAlgError, ValueError):
                 return None
+            if side == 2:
+                unit = x[:, 1 + len(st):]
+                full = np.zeros((size, 1 + n))
+                full[:, 0] = x[:, 0]
+                full[:, 1 + st] = x[:, 1:1 + len(st)]
+                for e, dd in wake_links.items():
+                    s_e = sides[lay.side[e]]
+                    x_e = solved[lay.side[e]][4 * local[e]:4 * local[e] + 4]
+                    full[:, 0] -= unit @ (dd @ x_e[:, 0])
+                    full[:, 1 + s_e] -= unit @ (dd @ x_e[:, 1:])
+                x = full
             solved.append(x)
             p[st] = x[3::4, 0]
             if side < 2:
@@ -659,7 +672,7 @@ class Coupled:
             res = bl.march(s[f:], bl.DirectEdge(ue[f:]), self.re,
                            bl.similar_start(float(s[f]), float(ue[f]), 1.0, self.re),
                            critical_amplification=self.transition.critical_amplification,
-                           trip_arc=trip, h_max=(3.5, 1.8))
+                           trip_arc=trip, h_max=(3.5, 1.8), tolerance=START_TOLERANCE)
             y[st[f:]] = np.stack([np.log(res.theta), res.h, res.third, res.ue], axis=1)
             lay.regime[st[f:]] = np.where(res.turbulent, TURBULENT, LAMINAR)
             if (lay.regime[st[-1]] == TURBULENT and lay.regime[st[-2]] == LAMINAR
@@ -675,7 +688,7 @@ class Coupled:
         ue0 = 0.5 * (u.ue[-1] + lo_.ue[-1])
         res = bl.march(lay.s[wk], bl.DirectEdge(np.maximum(self.u_inv[lay.node[wk]], ue0)),
                        self.re, bl.State(np.exp(lt), h, ce, ue0, True), wake=True,
-                       h_max=(3.5, 1.8))
+                       h_max=(3.5, 1.8), tolerance=START_TOLERANCE)
         y[wk] = np.stack([np.log(res.theta), res.h, res.third, res.ue], axis=1)
         return lay, y
 
