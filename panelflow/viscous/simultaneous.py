@@ -703,12 +703,17 @@ class Coupled:
 
         Forward to the first laminar station whose N reached the critical value (or to a trip
         passed), any number of stations at once, or by one station when the transition point
-        lies more than MOVE_MARGIN of the interval before its start; aft by one station when
-        it lies that far beyond its end (the laminar N of the stations beyond it is not known).
+        lies more than MOVE_MARGIN of the interval before its start; aft, when it lies that far
+        beyond its end, as far as a laminar march on the iterate's speeds says
+        (``_laminar_aft``).
         Returns the surfaces whose interval moved; surfaces in ``pinned`` make only the sure
         forward moves (a pinned laminar layer otherwise ran on past N = 100). Until the
         iteration has ``settled`` only the first kind of move is made (a station past the
-        critical value is a sure sign); the others, made on an unsettled iterate, chased its
+        critical value is a sure sign), except the one-station forward move when the point
+        lies at the lower end of FRACTION_RANGE: there the interval's equations extrapolate
+        and no longer hold it, and the iteration never settled (measured: the bubble behind a
+        leading edge, NACA 0012 at Re 3e6 from 10 degrees up; converged with the move). The
+        others, made on an unsettled iterate, chased its
         noise one station per iteration (measured).
         """
         n_crit = self.transition.critical_amplification
@@ -733,7 +738,8 @@ class Coupled:
             elif b == len(st):
                 last = np.flatnonzero((y[st, 2] >= n_crit) & (lay.kind[st] == INTERVAL))
                 target = int(last[0]) if len(last) else b
-            elif settled and free < -MOVE_MARGIN and lay.kind[st[b - 1]] == INTERVAL:
+            elif ((settled and free < -MOVE_MARGIN or free <= FRACTION_RANGE[0])
+                  and lay.kind[st[b - 1]] == INTERVAL):
                 target = b - 1
             target = min(target, t)
             if side in pinned and target >= b:
