@@ -115,9 +115,6 @@ def test_unconverged_angle_is_flagged(naca0012):
 
 
 @pytest.mark.slow
-@pytest.mark.xfail(strict=True, reason="known failure on main (2778376) as well: the viscous "
-                   "iteration does not converge here; for the viscous work to fix, then drop "
-                   "this mark")
 def test_warm_start_from_a_neighbour(naca0012, zero_lift):
     cold = solve(naca0012, 2.0, 3e6)
     warm = solve(naca0012, 2.0, 3e6, warm_start=zero_lift)

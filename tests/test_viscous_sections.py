@@ -70,9 +70,6 @@ def test_lift_slope(zero_lift, four_degrees):
     assert four_degrees.cl < four_degrees.inviscid_cl
 
 
-@pytest.mark.xfail(strict=True, reason="known failure on main (2778376) as well: the viscous "
-                   "iteration does not converge for this naca0012 at 2 deg, Re 3e6, cold or "
-                   "warm-started (residual 2.9); for the viscous work to fix, then drop this mark")
 def test_upper_transition_moves_forward_with_angle(naca0012, zero_lift, four_degrees):
     two = solve(naca0012, 2.0, 3e6, warm_start=zero_lift[3e6])
     # measured x/c 0.476, 0.289, 0.127 at 0, 2, 4 degrees; the lower one moves aft
@@ -109,9 +106,6 @@ def test_drag_converges_with_panels(reynolds):
 
 
 @pytest.mark.slow
-@pytest.mark.xfail(strict=True, reason="known failure on main (2778376) as well: the viscous "
-                   "iteration does not converge here; for the viscous work to fix, then drop "
-                   "this mark")
 def test_laminar_separation_bubble_at_low_reynolds_number(naca0012_closed):
     # Re 1e5, 2 degrees: the upper layer separates laminar, turns turbulent in the separated
     # shear layer and reattaches; measured separation x/c 0.46, transition 0.73,
