@@ -40,29 +40,37 @@ def draw(sweep, reynolds, path: Path = OUT) -> Path:
 
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
+    import matplotlib.ticker
     import numpy as np
 
     ok = sweep.converged
     a = sweep.alpha_deg
-    fig, (left, right) = plt.subplots(1, 2, figsize=(10, 4.2), constrained_layout=True)
+    fig, (left, right) = plt.subplots(1, 2, figsize=(10, 4.6), constrained_layout=True)
     left.plot(sweep.cd[ok], sweep.cl[ok], "-o", color="tab:blue", ms=4)
     for ai, cd, cl in zip(a[ok], sweep.cd[ok], sweep.cl[ok]):
         if ai % 2 == 0:
             left.annotate(f"{ai:g}°", (cd, cl), textcoords="offset points", xytext=(6, -3),
                           fontsize=8, color="0.3")
+    left.xaxis.set_major_locator(matplotlib.ticker.MaxNLocator(5))
     left.set_xlabel("drag coefficient cd")
     left.set_ylabel("lift coefficient cl")
     left.grid(alpha=0.3)
     left.set_title("Drag polar")
     up = sweep.column("transition_upper")
     lo = sweep.column("transition_lower")
-    right.plot(a[ok], up[ok], "-^", color="tab:red", ms=4, label="upper surface")
-    right.plot(a[ok], lo[ok], "-v", color="tab:green", ms=4, label="lower surface")
+    # no transition on a surface: laminar to the trailing edge, drawn at x/c 1 with open marks
+    for x, mark, colour, side in ((up, "^", "tab:red", "upper"), (lo, "v", "tab:green", "lower")):
+        laminar = ok & np.isnan(x)
+        right.plot(a[ok], np.where(np.isnan(x), 1.0, x)[ok], "-" + mark, color=colour, ms=4,
+                   label=f"{side} surface")
+        if laminar.any():
+            right.plot(a[laminar], np.ones(laminar.sum()), mark, ms=7, mfc="white",
+                       color=colour, label=f"{side}: laminar to the trailing edge")
     right.set_xlabel("angle of attack (degrees)")
     right.set_ylabel("transition x/c")
     right.set_ylim(0.0, 1.05)
     right.grid(alpha=0.3)
-    right.legend(loc="center left")
+    right.legend(loc="upper center", bbox_to_anchor=(0.5, -0.16), ncol=2, fontsize=8)
     right.set_title("Transition (critical amplification factor 9)")
     missing = ", ".join(f"{x:g}°" for x in a[~ok])
     fig.suptitle(f"Demo front foil, Reynolds number {reynolds:.2g}"
