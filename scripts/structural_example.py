@@ -147,6 +147,53 @@ def rib_diagram(body: dict, spar_fraction: float, stations: np.ndarray, factor: 
             "reaction_moment": -nose_up_moment(x, y, fx, fy, spar)}
 
 
+def rib_peaks(body: dict, spar_fraction: float, factor: float = 1.0) -> dict:
+    """Largest |shear| and |bending| of the rib over every cut, the spar included.
+
+    Both diagrams change only where a load node enters the free part, so their extremes lie at
+    the nodes' chord positions (taken with the node on either side of the cut) or at the spar
+    (taken from the front and from behind): every one of those cuts is evaluated.
+
+    Returns
+    -------
+    dict with ``shear``, ``shear_at``, ``moment``, ``moment_at`` (magnitudes and chord
+    fractions of the cuts where they occur).
+    """
+    x, y, fx, fy = _nodes(body)
+    fx, fy = factor * fx, factor * fy
+    le = np.asarray(body["leading_edge"], float)
+    te = np.asarray(body["trailing_edge"], float)
+    chord = float(np.hypot(*(te - le)))
+    e = (te - le) / chord
+    n = np.array([-e[1], e[0]])
+    xi = ((x - le[0]) * e[0] + (y - le[1]) * e[1]) / chord
+    fn = fx * n[0] + fy * n[1]
+    best = {"shear": (0.0, spar_fraction), "moment": (0.0, spar_fraction)}
+    cuts = np.unique(np.r_[xi[(xi >= 0.0) & (xi <= 1.0)], spar_fraction])
+    for s in cuts:
+        cut = le + s * chord * e
+        ahead = s <= spar_fraction
+        for free in ((xi < s, xi <= s) if ahead else (xi > s, xi >= s)):
+            if s == spar_fraction and ahead:
+                free = xi < s  # the spar from the front (and below, from behind)
+            v = abs(float(np.sum(fn[free])))
+            m = abs(nose_up_moment(x[free], y[free], fx[free], fy[free], cut))
+            if v > best["shear"][0]:
+                best["shear"] = (v, float(s))
+            if m > best["moment"][0]:
+                best["moment"] = (m, float(s))
+    cut = le + spar_fraction * chord * e
+    behind = xi > spar_fraction
+    v = abs(float(np.sum(fn[behind])))
+    m = abs(nose_up_moment(x[behind], y[behind], fx[behind], fy[behind], cut))
+    if v > best["shear"][0]:
+        best["shear"] = (v, spar_fraction)
+    if m > best["moment"][0]:
+        best["moment"] = (m, spar_fraction)
+    return {"shear": best["shear"][0], "shear_at": best["shear"][1],
+            "moment": best["moment"][0], "moment_at": best["moment"][1]}
+
+
 def hinge_moment(body: dict, point, factor: float = 1.0) -> float:
     """Nose-up moment of one body's loads about ``point`` (m): a flap's hinge moment."""
     x, y, fx, fy = _nodes(body)
@@ -204,7 +251,8 @@ def main(argv=None) -> int:
               file=sys.stderr)
         return 1
 
-    stations = np.linspace(0.0, 1.0, ns.stations)
+    # the table's stations, with the spar among them
+    stations = np.unique(np.r_[np.linspace(0.0, 1.0, ns.stations), ns.spar])
     rib = rib_diagram(body, ns.spar, stations, factor)
     print(f"\nrib of {body['name']!r} (chord {rib['chord']:.4g} m), clamped at the spar at "
           f"{ns.spar:g} c, carrying {ns.rib_spacing:g} m of span:")
@@ -214,8 +262,17 @@ def main(argv=None) -> int:
     fn, ft = rib["reaction_force"]
     print(f"  spar reaction: {fn:.6g} {force_u} normal to the chord, {ft:.6g} {force_u} along "
           f"it, {rib['reaction_moment']:.6g} {moment_u} nose-up")
-    print(f"  largest |shear| {np.max(np.abs(rib['shear'])):.6g} {force_u}, largest |bending| "
-          f"{np.max(np.abs(rib['moment'])):.6g} {moment_u}")
+    peaks = rib_peaks(body, ns.spar, factor)
+    print(f"  largest |shear| {peaks['shear']:.6g} {force_u} at x/c {peaks['shear_at']:.4f}, "
+          f"largest |bending| {peaks['moment']:.6g} {moment_u} at x/c "
+          f"{peaks['moment_at']:.4f} (over every load node's station and the spar)")
+    flap = data.get("flap_hinge")
+    if flap is not None:
+        span_m = factor * (span or 1.0)
+        print(f"\nflap hinge moment ({'deflected part' if flap['kind'] == 'plain' else 'flap'}"
+              f" about ({flap['hinge_point'][0]:.4g}, {flap['hinge_point'][1]:.4g}) m): "
+              f"{flap['moment'] * factor:.6g} {moment_u} nose-up for {span_m:g} m of span "
+              f"(coefficient {flap['coefficient']:.5f}; positive turns the trailing edge down)")
     if ns.hinge is not None:
         m = hinge_moment(body, ns.hinge, factor)
         print(f"\nhinge moment of {body['name']!r} about ({ns.hinge[0]:g}, {ns.hinge[1]:g}) m: "

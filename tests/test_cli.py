@@ -18,6 +18,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from text_tables import tables
+
 from conftest import run, run_json
 
 from panelflow.geometry.readers import load_outlines
@@ -52,19 +54,9 @@ def _is_number(text: str) -> bool:
 
 
 def table_rows(out: str) -> list[list[str]]:
-    """Rows of the first table under a header line starting with ``alpha``.
-
-    The table ends at the first line that does not start with a number (a blank line, or the
-    base-pressure line of a blunt trailing edge).
-    """
-    lines = out.splitlines()
-    start = next(i for i, ln in enumerate(lines) if ln.split()[:1] == ["alpha"])
-    rows = []
-    for ln in lines[start + 1:]:
-        tokens = ln.split()
-        if not tokens or not _is_number(tokens[0]):
-            break
-        rows.append(tokens)
+    """Cells of the rows of the first table (the per-angle totals)."""
+    head, rows = tables(out)[0]
+    assert head[0] == "angle of attack [deg]", head
     return rows
 
 
@@ -80,8 +72,8 @@ def test_solve_builtin_spec_prints_one_row_per_angle(spec, capsys):
     code, out, err = run(capsys, "solve", spec, "--alpha", "0", "4", *QUICK)
     assert code == 0, err
     assert err == ""
-    header = next(ln for ln in out.splitlines() if ln.split()[:1] == ["alpha"])
-    assert header.split()[:2] == ["alpha", "cl"]
+    header = tables(out)[0][0]
+    assert header[:2] == ["angle of attack [deg]", "lift coefficient"]
     # the table prints alpha with 2 decimals: compare to that rounding
     assert table_alphas(out) == pytest.approx([0.0, 4.0], abs=5e-3)
     assert "caution:" in out  # the model's limits are always stated
@@ -307,7 +299,9 @@ def test_solve_refuses_to_overwrite_without_force(name, tmp_path, capsys, monkey
     assert err.startswith("panelflow: error: ") and err.count("\n") == 1
     assert name in err and "--force" in err
     assert Path(name).read_bytes() == before
-    assert sorted(p.name for p in tmp_path.iterdir()) == [name]  # no temporary file left
+    # no temporary file left; a CSV table has its notes beside it
+    expected = [name] + (["out.about.json"] if name.endswith(".csv") else [])
+    assert sorted(p.name for p in tmp_path.iterdir()) == sorted(expected)
     code, out, err = run(capsys, "solve", "naca0012", "--alpha", "5", *QUICK, "-o", name,
                          "--force")
     assert code == 0, err
@@ -384,7 +378,8 @@ def test_section_refuses_to_overwrite(tmp_path, capsys, monkeypatch):
     assert Path("f.dat").read_bytes() == before
     code, out, err = run(capsys, "section", "naca0012", "-o", "f.dat", "--force")
     assert code == 0, err
-    assert Path("f.dat").read_text().startswith("naca0012\n")  # title line: the new spec
+    # the new spec's name in every row of panelflow's own layout
+    assert Path("f.dat").read_text().startswith("body,point,x,y\nnaca0012,1,")
 
 
 # ---------------------------------------------------------------------------------- entry points

@@ -29,6 +29,8 @@ from pathlib import Path
 import numpy as np
 import pytest
 
+from text_tables import tables
+
 from conftest import run, run_json
 
 from panelflow.cli.main import main
@@ -92,26 +94,6 @@ def _is_number(text: str) -> bool:
     except ValueError:
         return False
     return True
-
-
-def tables(out: str, first: str = "alpha") -> list[tuple[list[str], list[list[str]]]]:
-    """(header tokens, rows of tokens) of every table whose header starts with ``first``.
-
-    A table ends at the first line that does not start with a number.
-    """
-    lines = out.splitlines()
-    found = []
-    for i, ln in enumerate(lines):
-        if ln.split()[:1] != [first]:
-            continue
-        rows = []
-        for nxt in lines[i + 1:]:
-            tokens = nxt.split()
-            if not tokens or not _is_number(tokens[0]):
-                break
-            rows.append(tokens)
-        found.append((ln.split(), rows))
-    return found
 
 
 def section_after(out: str, title: str) -> str:
@@ -330,14 +312,13 @@ COMPARE_CASES = ["naca2412", "naca0012@name=rudder", "geometries/front_foil_with
 
 
 def compare_rows(out: str, labels) -> dict[str, list[list[str]]]:
-    """Table rows of ``compare`` per case label (labels may contain spaces)."""
-    lines = out.splitlines()
-    assert lines[0].split()[:3] == ["case", "alpha", "cl"], lines[0]
-    body = lines[1:lines.index("")]
+    """Table rows of ``compare`` per case label (labels may contain spaces), without the
+    label: angle, lift, its estimate, moment, ..."""
+    head, body = tables(out)[0]
+    assert head[:3] == ["case", "angle of attack [deg]", "lift coefficient"], head
     rows = {lb: [] for lb in labels}
-    for ln in body:
-        label = max((lb for lb in labels if ln.startswith(lb + " ")), key=len)
-        rows[label].append(ln[len(label):].split())
+    for row in body:
+        rows[row[0]].append(row[1:])
     assert sum(len(r) for r in rows.values()) == len(body)
     return rows
 
@@ -501,13 +482,12 @@ def test_cavitation_inception_speed(fluid, depth, speed, capsys):
         # 2 decimals (0.005) and -Cp_min to 4 (relative 5e-5 / 1.4, half of it in V_i: 2e-4 m/s)
         v_i = math.sqrt(2.0 * head_pressure / (f.density * neg_cp_min))
         assert float(row[2]) == pytest.approx(v_i, abs=0.006)
-        assert row[3] == "m/s"
         if speed:
             sigma = head_pressure / (0.5 * f.density * speed**2)
-            margin = float(row[4])
+            margin = float(row[3])
             # margin = sigma - (-Cp_min): printed to 3 decimals, sigma from 4-decimal Cp_min
             assert margin == pytest.approx(sigma - neg_cp_min, abs=6e-4)
-            assert ("cavitating" in row[5:]) == (margin < 0)
+            assert (row[4] == "cavitating") == (margin < 0)
     if speed:
         printed_sigma = float(re.search(r"cavitation number ([\d.]+)", head).group(1))
         assert printed_sigma == pytest.approx(sigma, abs=5e-5)  # printed to 4 decimals
@@ -545,7 +525,8 @@ def test_solve_bad_new_options(argv, fragment, workdir, capsys):
 # ---------------------------------------------------------------------------------- near a plane
 def plane_rows(out: str):
     head, rows = tables(out)[0]
-    assert head[:5] == ["alpha", "cl", "+/-", "cm", "+/-"]
+    assert head[:5] == ["angle of attack [deg]", "lift coefficient", "error estimate",
+                        "moment coefficient", "error estimate"]
     return rows
 
 
@@ -671,7 +652,8 @@ def load_run(request, tmp_path_factory):
 
 def test_loads_files_and_report(load_run):
     _, folder, out, err = load_run
-    assert files_in(folder) == ["loads.csv", "loads.inp", "loads.json", "loads.loads.csv"]
+    assert files_in(folder) == ["loads.about.json", "loads.csv", "loads.inp", "loads.json",
+                                "loads.loads.about.json", "loads.loads.csv"]
     for name in files_in(folder):
         assert f"wrote {folder / name}" in err
     assert out.startswith("equilibrium check")
@@ -744,9 +726,10 @@ def test_structural_example_reads_the_json(load_run):
     lines = proc.stdout.splitlines()
     assert "MISMATCH" not in proc.stdout
     head = next(i for i, ln in enumerate(lines) if "shear [N]" in ln and "bending" in ln)
-    stations = [ln.split() for ln in lines[head + 1:head + 7]]
-    assert [float(s[0]) for s in stations] == pytest.approx([0, 0.2, 0.4, 0.6, 0.8, 1.0],
-                                                            abs=5e-4)  # printed to 3 decimals
+    stations = [ln.split() for ln in lines[head + 1:head + 8]]
+    # the six even stations and the spar (default 0.35 c) among them
+    assert [float(s[0]) for s in stations] == pytest.approx(
+        [0, 0.2, 0.35, 0.4, 0.6, 0.8, 1.0], abs=5e-4)  # printed to 3 decimals
     assert all(len(s) == 3 and all(_is_number(v) for v in s) for s in stations)
     assert "spar reaction" in proc.stdout
 
@@ -875,6 +858,6 @@ def test_compare_family_table_and_polar_figure(tmp_path, capsys):
     assert [r["section"] for r in rows] == ["naca0009"] * 3 + ["naca0015"] * 3
     assert fig.read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     # the table's cl are the printed ones (same computation, 5 decimals printed)
-    printed = [float(line.split()[2]) for line in stdout.splitlines() if line.startswith("naca")]
+    printed = [float(row[2]) for row in tables(stdout)[0][1]]
     # printed to 5 decimals: equal to within half a unit of the last one
     assert printed == pytest.approx([float(r["cl"]) for r in rows], abs=5e-6)

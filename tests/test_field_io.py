@@ -1,6 +1,7 @@
 """Flow-field files (.vtu, .xdmf, .csv) read back, atomic writing, and the points reader."""
 
 import csv
+import json
 import importlib.util
 import os
 import sys
@@ -10,6 +11,8 @@ import xml.etree.ElementTree as ET
 import meshio
 import numpy as np
 import pytest
+
+from panelflow.output.columns import sidecar_path, with_sidecar
 
 import panelflow as pf
 from panelflow.errors import InputError, OutputError
@@ -211,11 +214,13 @@ def test_mesh_files_carry_angle_and_caution(tmp_path, grid_field, ext):
 
 # ---------------------------------------------------------------------------------- csv
 def read_csv(path):
+    """(notes, header, rows): one header row first, the notes in the file beside it."""
     with open(path, encoding="utf-8", newline="") as fh:
         lines = fh.read().splitlines()
-    comments = [ln for ln in lines if ln.startswith("#")]
-    rows = list(csv.reader(ln for ln in lines if not ln.startswith("#")))
-    return comments, rows[0], rows[1:]
+    assert not lines[0].startswith("#")
+    rows = list(csv.reader(lines))
+    rec = json.loads(sidecar_path(path).read_text())
+    return [*rec["notes"], rec["caution"]], rows[0], rows[1:]
 
 
 @pytest.mark.parametrize("alpha_index", [0, 1])
@@ -260,7 +265,7 @@ def test_overwrite_replaces_and_leaves_no_temporary(tmp_path, grid_field, ext):
     target.write_text("old\n")
     write_field(grid_field, target, overwrite=True)
     assert target.read_text() != "old\n"
-    assert listing(tmp_path) == [target.name]
+    assert listing(tmp_path) == sorted(p.name for p in with_sidecar(target))
 
 
 def failing_meshio_write(exc):

@@ -26,8 +26,9 @@ import math
 import pytest
 
 from panelflow.errors import InputError
-from panelflow.conditions.fluids import (FLUIDS, UNITS, Conditions, Fluid, get_fluid, resolve_fluid,
-                              user_fluid)
+from panelflow.conditions.fluids import (FLUIDS, UNITS, Conditions, Fluid, get_fluid,
+                                        make_fluid, resolve_fluid, user_fluid)
+from panelflow.conditions.viscosity import standard_atmosphere
 
 # ---------------------------------------------------------------- independent reference formulas
 TANAKA = (-3.983035, 301.797, 522528.9, 69.34881, 999.974950)  # degC, degC, degC^2, degC, kg/m3
@@ -84,44 +85,88 @@ def test_if97_saturation_equation_reproduces_verification_values(T, p_mpa):
 # ---------------------------------------------------------------- presets against the references
 def test_air_is_iso_2533_sea_level():
     air = get_fluid("air")
-    assert air.density == 1.225 and air.ambient_pressure == 101325.0
+    # the standard's sea-level density is printed to 4 significant digits (1.225): computed
+    # from its formulas it agrees to half a unit of the last (4e-4 relative); measured 1.5e-8
+    assert abs(air.density - 1.225) / 1.225 < 4e-4
+    assert air.ambient_pressure == 101325.0
     assert air.temperature_c + 273.15 == pytest.approx(288.15, abs=1e-12)  # rounding only
     assert air.vapour_pressure is None
-    # ideal gas with the standard's constants: rho0 is printed to 4 significant digits, so it
-    # agrees to half a unit of the last (4e-4 relative); measured 6.9e-7
+    # ideal gas with the standard's constants: measured 6.9e-7
     r_air = 8.31432 / 28.9644e-3
     assert abs(101325.0 / (r_air * 288.15) - air.density) / air.density < 4e-4
     assert "ISO 2533" in air.source
 
 
-def test_fresh_water_density_against_tanaka():
-    # preset rounded to 0.01 kg/m3 (the ITTC table's 999.10 from memory); Tanaka gives 999.1026
-    # for air-free water; tolerance: the rounding plus a margin for dissolved air (a few
-    # thousandths of a kg/m3, common practice)
-    fresh = get_fluid("fresh-water")
-    assert abs(fresh.density - tanaka_density(15.0)) < 0.01
-    assert "ITTC 7.5-02-01-03" in fresh.source
+@pytest.mark.parametrize("t_c", [0.5, 4.0, 15.0, 20.0, 30.0, 40.0])
+def test_fresh_water_density_against_tanaka(t_c):
+    # TEOS-10 at zero salinity against Tanaka et al.'s formula for air-free water: measured
+    # within 0.0021 kg/m3 over 0-40 degC; 0.01 kg/m3 allows for the two formulations' own
+    # difference (a wrong coefficient or unit would be off by far more)
+    fresh = make_fluid("fresh-water", temperature=t_c)
+    assert abs(fresh.density - tanaka_density(t_c)) < 0.01
+    assert "TEOS-10" in fresh.source and f"{t_c:g} degC" in fresh.source
 
 
-def test_sea_water_density_against_unesco():
-    # "salinity 35 g/kg" reads either as practical salinity 35 or as absolute salinity 35 g/kg
-    # (practical 35 x 35 / 35.16504 = 34.84); the preset must lie between the two densities
-    # (1025.85 and 1025.97 kg/m3), with 0.01 kg/m3 for its rounding
-    sea = get_fluid("sea-water")
-    lo = unesco_seawater_density(35.0 * 35.0 / 35.16504, 15.0)
-    hi = unesco_seawater_density(35.0, 15.0)
-    assert lo - 0.01 <= sea.density <= hi + 0.01
+@pytest.mark.parametrize("t_c, sa", [(15.0, 35.0), (5.0, 35.0), (25.0, 30.0), (10.0, 20.0)])
+def test_sea_water_density_against_unesco(t_c, sa):
+    # TEOS-10 takes absolute salinity; EOS-80 (UNESCO 1981) practical salinity: SP = SA x
+    # 35 / 35.16504 for standard sea water (TEOS-10's reference composition). The two equations
+    # differ by a few thousandths of a kg/m3 (measured up to 0.003); 0.01 kg/m3 allowed
+    sea = make_fluid("sea-water", temperature=t_c, salinity=sa)
+    assert abs(sea.density - unesco_seawater_density(sa * 35.0 / 35.16504, t_c)) < 0.01
+    assert f"absolute salinity {sa:g} g/kg" in sea.source
 
 
 @pytest.mark.parametrize("name", ["fresh-water", "sea-water"])
-def test_vapour_pressure_against_if97(name):
-    # the preset is the IF97 value at 288.15 K rounded to 0.1 Pa
-    assert abs(get_fluid(name).vapour_pressure - if97_saturation_pressure(288.15)) < 0.05
+@pytest.mark.parametrize("t_c", [2.0, 15.0, 27.0])
+def test_vapour_pressure_against_if97(name, t_c):
+    # the same equation written out above, and the iapws package's implementation of it:
+    # round-off only
+    fluid = make_fluid(name, temperature=t_c)
+    assert fluid.vapour_pressure == pytest.approx(if97_saturation_pressure(t_c + 273.15),
+                                                  rel=1e-12)
+    from iapws.iapws97 import _PSat_T
+
+    assert fluid.vapour_pressure == pytest.approx(_PSat_T(t_c + 273.15) * 1e6, rel=1e-9)
+    assert "IAPWS-IF97" in fluid.source
 
 
 def test_every_preset_names_its_source():
     for fluid in FLUIDS.values():
         assert fluid.source and fluid.density > 0 and fluid.ambient_pressure == 101325.0
+        assert "memory" not in fluid.source
+
+
+@pytest.mark.parametrize("altitude", [0.0, 800.0, 2500.0])
+def test_altitude_sets_the_ambient_pressure(altitude):
+    # a lake at altitude: the water surface is at the standard atmosphere's pressure there
+    # (ISO 2533; the same formulas are checked against the fluids package in
+    # test_viscosity.py), and air there has the standard's density
+    ref = standard_atmosphere(altitude)
+    lake = make_fluid("fresh-water", altitude=altitude)
+    assert lake.ambient_pressure == pytest.approx(ref["pressure"], rel=1e-15)
+    assert make_fluid("air", altitude=altitude).density == pytest.approx(ref["density"],
+                                                                         rel=1e-15)
+
+
+def test_air_temperature_changes_density_by_the_gas_law():
+    # the same pressure, another temperature: rho T constant (ideal gas); round-off only
+    warm = make_fluid("air", temperature=35.0)
+    std = get_fluid("air")
+    assert warm.density * (35.0 + 273.15) == pytest.approx(std.density * 288.15, rel=1e-9)
+
+
+@pytest.mark.parametrize("name, kwargs, words", [
+    ("fresh-water", {"salinity": 35.0}, "use sea-water"),
+    ("air", {"salinity": 35.0}, "not air"),
+    ("sea-water", {"temperature": 55.0}, "outside"),
+    ("sea-water", {"salinity": 80.0}, "outside"),
+    ("air", {"altitude": 30000.0}, "outside"),
+    ("fresh-water", {"temperature": 40.0, "altitude": 19000.0}, "boils"),
+])
+def test_bad_fluid_states(name, kwargs, words):
+    with pytest.raises(InputError, match=words):
+        make_fluid(name, **kwargs)
 
 
 @pytest.mark.parametrize("spelling, name", [
@@ -133,8 +178,9 @@ def test_fluid_names_are_forgiving(spelling, name):
 
 # ---------------------------------------------------------------- conditions
 def test_dynamic_pressure_and_units():
-    c = Conditions(get_fluid("sea-water"), 6.0, span=1.5)
-    assert c.dynamic_pressure == pytest.approx(0.5 * 1025.90 * 36.0, rel=1e-15)  # rounding
+    sea = get_fluid("sea-water")
+    c = Conditions(sea, 6.0, span=1.5)
+    assert c.dynamic_pressure == pytest.approx(0.5 * sea.density * 36.0, rel=1e-15)  # rounding
     assert (c.force_unit, c.moment_unit, c.span_factor) == ("N", "N m", 1.5)
     per_m = Conditions(get_fluid("air"), 10.0)
     assert (per_m.force_unit, per_m.moment_unit, per_m.span_factor) == ("N/m", "N m/m", 1.0)
@@ -200,3 +246,56 @@ def test_user_density_has_no_pressures():
     with pytest.raises(InputError, match="no ambient pressure"):
         Conditions.absolute(f, 3.0)
     assert isinstance(f, Fluid)
+
+
+# ---------------------------------------------------------------- through the command line
+def test_state_options_reach_the_cavitation_check_and_the_loads(tmp_path, capsys):
+    import json
+
+    from panelflow.cli.main import main
+
+    args = ["naca0012", "--alpha", "4", "--panels", "60", "--fluid", "sea-water",
+            "--temperature", "25", "--salinity", "30", "--altitude", "0"]
+    assert main(["solve", *args, "--depth", "0.5", "--speed", "9", "--json"]) == 0
+    rec = json.loads(capsys.readouterr().out)
+    warm = make_fluid("sea-water", temperature=25.0, salinity=30.0)
+    assert rec["cavitation"]["density_kg_m3"] == warm.density
+    assert rec["cavitation"]["vapour_pressure_pa"] == warm.vapour_pressure
+    assert rec["conditions"]["temperature"] == 25.0 and rec["conditions"]["salinity"] == 30.0
+    out = tmp_path / "loads.json"
+    assert main(["loads", *args, "--speed", "9", "--chord", "0.25", "-o", str(out)]) == 0
+    capsys.readouterr()
+    cond = json.loads(out.read_text())["conditions"]
+    assert cond["density"] == warm.density and cond["temperature_c"] == 25.0
+    assert "TEOS-10" in cond["fluid_source"] and "memory" not in out.read_text()
+
+
+@pytest.mark.parametrize("argv, words", [
+    (["--temperature", "20"], "fluid by name"),  # a state without a preset fluid
+    (["--fluid", "fresh-water", "--salinity", "10"], "use sea-water"),
+])
+def test_state_options_refused(argv, words, capsys):
+    from panelflow.cli.main import main
+
+    assert main(["loads", "naca0012", "--alpha", "4", "--panels", "60", "--speed", "5",
+                 "--density", "1000", *argv, "-o", "x.json"] if "--fluid" not in argv else
+                ["loads", "naca0012", "--alpha", "4", "--panels", "60", "--speed", "5", *argv,
+                 "-o", "x.json"]) == 1
+    assert words in capsys.readouterr().err
+
+
+def test_case_file_state_keys(tmp_path):
+    from panelflow.study.cases import load_case
+
+    case = tmp_path / "study.toml"
+    case.write_text('[[section]]\nspec = "naca0012"\n[conditions]\nalpha = 4\n'
+                    'fluid = "fresh-water"\nspeed = 6.0\ndepth = 1.0\ntemperature = 8.0\n'
+                    'altitude = 1200.0\n[[outputs.loads]]\nfile = "l.json"\nalpha = 4\n'
+                    'chord = 0.2\n')
+    c = load_case(case)
+    lake = make_fluid("fresh-water", temperature=8.0, altitude=1200.0)
+    assert c.tasks[0].operating.fluid == lake
+    assert dict(c.outputs.loads[0].fluid_state) == {"temperature": 8.0, "altitude": 1200.0}
+    case.write_text(case.read_text().replace("temperature = 8.0", "temperature = 80.0"))
+    with pytest.raises(InputError, match=r"conditions\.temperature.*outside"):
+        load_case(case)

@@ -16,6 +16,8 @@ import meshio
 import numpy as np
 import pytest
 
+from panelflow.output.columns import sidecar_path
+
 import panelflow as pf
 from panelflow.errors import OutputError
 from panelflow.conditions.fluids import Conditions, get_fluid
@@ -54,8 +56,16 @@ def assert_cautions(text: str):
 
 
 def data_rows(text: str):
-    return list(csv.reader(io.StringIO("\n".join(
-        line for line in text.splitlines() if not line.startswith("#")))))
+    # exactly one header row, nothing before it: a spreadsheet opens the file as it is
+    assert not text.startswith("#")
+    return list(csv.reader(io.StringIO(text)))
+
+
+def notes_of(path) -> str:
+    """The notes written beside a CSV file (cautions, conditions, totals) as one text."""
+    rec = json.loads(sidecar_path(path).read_text())
+    assert rec["table"] == path.name
+    return "\n".join([*rec["notes"], rec["caution"], *rec.get("cautions", [])])
 
 
 # ------------------------------------------------------------------ read back
@@ -84,9 +94,10 @@ def test_json_read_back(tmp_path, loads):
 
 
 def test_csv_read_back(tmp_path, loads):
-    [path] = write_loads(loads, tmp_path / "loads.csv")
+    [path, notes] = write_loads(loads, tmp_path / "loads.csv")
+    assert notes == sidecar_path(path)
     text = path.read_text()
-    assert_cautions(comment_lines(text, "#"))
+    assert_cautions(notes_of(path))
     rows = data_rows(text)
     assert rows[0] == ["body", "node", "x [m]", "y [m]", "fx [N]", "fy [N]"]
     expected = [(name, int(i), float(x), float(y), float(fx), float(fy))
@@ -113,9 +124,10 @@ def test_vtu_read_back(tmp_path, loads):
 
 def test_inp_and_companion_read_back(tmp_path, loads):
     paths = write_loads(loads, tmp_path / "section.inp")
-    assert paths == [tmp_path / "section.inp", tmp_path / "section.loads.csv"]
+    assert paths == [tmp_path / "section.inp", tmp_path / "section.loads.csv",
+                     tmp_path / "section.loads.about.json"]
     assert_cautions(comment_lines(paths[0].read_text(), "**"))
-    assert_cautions(comment_lines(paths[1].read_text(), "#"))
+    assert_cautions(notes_of(paths[1]))
     mesh = meshio.read(paths[0])
     groups = load_nodes(loads)
     xy = np.vstack([np.stack([g[2], g[3]], axis=1) for g in groups])

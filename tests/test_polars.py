@@ -15,7 +15,7 @@ import pytest
 import panelflow as pf
 from panelflow.output import figures as plots
 from panelflow.errors import InputError, OutputError
-from panelflow.output.tables import POLAR_COLUMNS, Polar, Table, polar, read_table, tidy_table, write_table
+from panelflow.output.tables import POLAR_COLUMNS, SECTION_COLUMNS, Polar, Table, polar, read_table, tidy_table, write_table
 from panelflow.output.writers import polar_rows as writer_rows
 
 N_PANELS = 60  # coarse: a few milliseconds per analysis; the checks do not depend on it
@@ -61,7 +61,7 @@ def test_tidy_table(analyses):
     polars = [polar(a, lab) for lab, a in analyses.items()]
     polars[1] = polar(analyses["naca0012"], "naca0012", extra={"cl_mach": np.arange(5.0)})
     t = tidy_table(polars)
-    assert t.names == ("section", *POLAR_COLUMNS, "cl_mach")
+    assert t.names == ("section", *POLAR_COLUMNS, *SECTION_COLUMNS, "cl_mach")
     assert len(t) == 3 * len(ANGLES)
     assert t["section"] == tuple(lab for lab in analyses for _ in ANGLES)
     np.testing.assert_array_equal(t.where("section", "naca4412")["cl"], analyses["naca4412"].cl)
@@ -132,7 +132,7 @@ def test_unknown_table_format(analyses, tmp_path):
 def test_polar_figure_objects(analyses):
     fig = plots._build_polar_figure(list(analyses.values()))
     ax_cl, ax_cm, ax_cp = fig.axes[:3]
-    assert [ax.get_ylabel() for ax in (ax_cl, ax_cm, ax_cp)] == ["Cl", "Cm", "Cp min"]
+    assert [ax.get_ylabel() for ax in (ax_cl, ax_cm, ax_cp)] == ["Cl", "Cm", "lowest Cp"]
     assert ax_cp.yaxis_inverted() and not ax_cl.yaxis_inverted()  # suction up
     legend = [t.get_text() for t in ax_cl.get_legend().get_texts()]
     assert legend == list(analyses)

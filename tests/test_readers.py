@@ -3,9 +3,15 @@
 import importlib.util
 from pathlib import Path
 
+import csv
+import dataclasses
+
 import meshio
+
 import numpy as np
 import pytest
+
+import panelflow as pf
 
 from panelflow.errors import GeometryError, InputError, OutputError
 from panelflow.geometry.readers import (READERS, load_outlines, read_outline_mesh, read_outline_table,
@@ -391,17 +397,35 @@ def test_load_outlines_spec_and_path_like_spec(tmp_path, monkeypatch):
 
 
 # ---------------------------------------------------------------------------------- writer
+@pytest.mark.parametrize("ext", [".dat", ".csv"])
 @pytest.mark.parametrize("spec", ["naca2412", "naca0012-closed", "circle:0.5",
                                   "karman-trefftz:-0.1,0.05,10"])
-def test_write_and_read_back(tmp_path, spec):
+def test_write_and_read_back(tmp_path, spec, ext):
     (o,) = load_outlines(spec)
-    path = write_outline_table(o, tmp_path / "out.dat")
+    path = write_outline_table(o, tmp_path / f"out{ext}")
     text = path.read_text()
-    assert text.splitlines()[0] == spec and "# source: " + spec in text
+    # panelflow's own layout: one header row, then body, point number, x, y per row
+    assert text.splitlines()[0] == "body,point,x,y"
+    rows = list(csv.reader(text.splitlines()[1:]))
+    assert [r[0] for r in rows] == [spec] * len(o.points)
+    assert [int(r[1]) for r in rows] == list(range(1, len(o.points) + 1))
     (back,) = read_outline_table(path)
     assert back.name == o.name and back.kind == o.kind
     np.testing.assert_allclose(back.points, o.points, atol=1e-11)  # 12 significant digits
-    assert [p.name for p in tmp_path.iterdir()] == ["out.dat"]  # no temp file left
+    assert [p.name for p in tmp_path.iterdir()] == [f"out{ext}"]  # no temp file left
+
+
+def test_several_bodies_and_a_unit_round_trip(tmp_path):
+    main_body = pf.load_outlines("naca2412")[0].renamed("main, port")
+    flap_body = pf.load_outlines("naca0012")[0].scaled(0.3).translated(1.02, -0.05)
+    mm = [dataclasses.replace(b.scaled(250.0), unit="mm") for b in (main_body, flap_body)]
+    path = write_outline_table(mm, tmp_path / "pair.csv")
+    assert path.read_text().splitlines()[0] == "body,point,x_mm,y_mm"
+    back = read_outline_table(path)
+    assert [b.name for b in back] == ["main, port", mm[1].name]
+    assert all(b.unit == "mm" for b in back)
+    for b, o in zip(back, mm):
+        np.testing.assert_allclose(b.points, o.points, atol=250 * 1e-11)
 
 
 def test_write_refuses_existing_file(tmp_path):
@@ -413,7 +437,7 @@ def test_write_refuses_existing_file(tmp_path):
     assert path.read_text() == "precious\n"
     assert [p.name for p in tmp_path.iterdir()] == ["keep.dat"]
     write_outline_table(naca4("0012"), path, overwrite=True)
-    assert path.read_text().startswith("naca0012\n")
+    assert path.read_text().startswith("body,point,x,y\nnaca0012,1,")
 
 
 def test_write_missing_folder(tmp_path):
@@ -439,14 +463,15 @@ def test_write_no_hard_links_falls_back(tmp_path, monkeypatch):
     monkeypatch.setattr("panelflow.files.os.link", no_link)
     path = write_outline_table(naca4("0012"), tmp_path / "y.dat")
     assert [p.name for p in tmp_path.iterdir()] == ["y.dat"]
-    assert path.read_text().startswith("naca0012\n")
+    assert path.read_text().startswith("body,point,x,y\nnaca0012,1,")
 
 
-def test_numeric_name_gets_a_word(tmp_path):
+def test_numeric_name_stays(tmp_path):
+    # in the named-column layout a name is a field of its own: numbers are no risk
     o = naca4("0012").renamed("12 3")
     path = write_outline_table(o, tmp_path / "n.dat")
     (back,) = read_outline_table(path)
-    assert back.name == "section 12 3" and len(back.points) == len(o.points)
+    assert back.name == "12 3" and len(back.points) == len(o.points)
 
 
 # ---------------------------------------------------------------------------------- demo files
@@ -486,3 +511,87 @@ def test_demo_files_match_their_script(tmp_path):
     assert list(tmp_path.iterdir()) == []
     for path in module.write_all(tmp_path):
         assert path.read_text() == (ROOT / "geometries" / path.name).read_text(), path.name
+
+
+# ---------------------------------------------------------------------------------- units, commas
+@pytest.mark.parametrize("header, unit", [
+    ("x_mm,y_mm", "mm"), ("x [in]  y [in]", "in"), ("x (m); y (m)", "m"), ("x/c y/c", None),
+    ("X_MM, Y_MM", "mm"), ("x y", None), ("x[cm],y[cm]", "cm"), ("x (feet) y (feet)", "ft"),
+])
+def test_unit_header_is_honoured(tmp_path, header, unit):
+    pts = reference().points
+    path = write(tmp_path, "u.txt", [header, *rows(pts)])
+    (o,) = read_outline_table(path)
+    assert o.unit == unit
+    np.testing.assert_allclose(o.points, pts, atol=1e-10)  # written to 10 decimals
+
+
+@pytest.mark.parametrize("header, words", [
+    ("x_furlong,y_furlong", "does not know"),
+    ("x_mm,y_in", "different units"),
+    ("x/c (mm), y/c (mm)", "chord fractions"),
+])
+def test_unit_header_refused_clearly(tmp_path, header, words):
+    path = write(tmp_path, "u.txt", [header, *rows(reference().points)])
+    with pytest.raises(InputError, match=words) as err:
+        read_outline_table(path)
+    assert "line 1" in str(err.value)
+
+
+def test_header_unit_reaches_the_loads_and_a_contrary_unit_is_refused(tmp_path, capsys):
+    from panelflow.cli.main import main
+
+    pts = reference().points * 250.0  # a 250 mm chord
+    path = write(tmp_path, "foil.csv", ["x_mm,y_mm", *(f"{x:.6f},{y:.6f}" for x, y in pts)])
+    args = ["loads", str(path), "--alpha", "4", "--fluid", "sea-water", "--speed", "8",
+            "--panels", "60"]
+    assert main([*args, "-o", str(tmp_path / "a.json")]) == 0
+    out = capsys.readouterr().out
+    import json
+
+    cond = json.loads((tmp_path / "a.json").read_text())["conditions"]
+    # 250 mm read as millimetres: 0.25 m, not a 250 m chord (chord from the fitted curve)
+    assert cond["chord"] == pytest.approx(0.25, rel=1e-3)
+    assert "warning:" not in out
+    assert main([*args, "--unit", "m", "-o", str(tmp_path / "b.json")]) == 1
+    assert "column header says mm" in capsys.readouterr().err
+
+
+def test_implausible_size_is_warned(tmp_path, capsys):
+    from panelflow.cli.main import main
+
+    pts = reference().points * 250.0  # millimetres with no header: read as metres
+    path = write(tmp_path, "foil.dat", rows(pts))
+    assert main(["loads", str(path), "--alpha", "4", "--fluid", "sea-water", "--speed", "8",
+                 "--panels", "60", "-o", str(tmp_path / "a.json")]) == 0
+    out = capsys.readouterr().out
+    line = next(ln for ln in out.splitlines() if ln.startswith("warning:"))
+    assert "250" in line and "--unit mm" in line
+
+
+@pytest.mark.parametrize("separator", [";", "\t", "  "])
+def test_decimal_commas_are_read(tmp_path, separator):
+    pts = reference().points
+    lines = ["Foil, rev. 2"] + [f"{x:.9f}{separator}{y:.9f}".replace(".", ",") for x, y in pts]
+    path = write(tmp_path, "dc.txt", lines)
+    (o,) = read_outline_table(path)
+    assert o.name == "Foil, rev. 2"
+    np.testing.assert_allclose(o.points, pts, atol=1e-9)
+
+
+def test_decimal_commas_with_comma_separators_get_the_real_reason(tmp_path):
+    pts = reference().points
+    path = write(tmp_path, "dc.txt", ["Foil"] + [f"{x:.4f},{y:.4f}".replace(".", ",")
+                                                for x, y in pts[:3]] + rows(pts[3:]))
+    with pytest.raises(InputError, match="decimal commas") as err:
+        read_outline_table(path)
+    assert "title line" not in str(err.value)
+
+
+def test_spreadsheet_export_with_extra_columns(tmp_path):
+    pts = reference().points
+    lines = ["station;x (mm);y (mm);note"] + [f"{k};{x:.6f};{y:.6f};ok".replace(".", ",")
+                                               for k, (x, y) in enumerate(pts * 100.0)]
+    (o,) = read_outline_table(write(tmp_path, "sheet.csv", lines))
+    assert o.unit == "mm"
+    np.testing.assert_allclose(o.points, pts * 100.0, atol=1e-6)

@@ -24,7 +24,7 @@ from dataclasses import dataclass, field, fields, replace
 import numpy as np
 
 from panelflow.conditions.compressibility import KARMAN_TSIEN, RULES, check_mach
-from panelflow.conditions.fluids import UNITS, Fluid, get_fluid, user_fluid
+from panelflow.conditions.fluids import UNITS, Fluid, make_fluid, user_fluid
 from panelflow.errors import InputError
 from panelflow.flow.images import MAX_DISTANCE_CHORDS, Boundary
 from panelflow.geometry.outline import MAX_COORDINATE, Outline
@@ -52,7 +52,7 @@ FLAP_GAP_RANGE = (1e-3, 0.1)  # chord fractions
 MAX_FLAP_RADIUS = 0.1  # chord fraction
 MAX_SMOOTHING = 0.01  # fraction of the body's chord
 
-__all__ = ["Flap", "OperatingPoint", "Problem", "check_output", "OUTPUTS", "DEFAULT_PANELS",
+__all__ = ["Flap", "OperatingPoint", "Problem", "check_output", "outline_unit", "OUTPUTS", "DEFAULT_PANELS",
            "MIN_PANELS", "MAX_PANELS_PER_BODY", "MAX_PANELS_TOTAL", "MAX_ANGLES",
            "MAX_PLANE_ANGLES"]
 
@@ -161,6 +161,12 @@ class OperatingPoint:
         A preset name (``"air"``, ``"fresh-water"``, ``"sea-water"``) or a
         :class:`~panelflow.conditions.fluids.Fluid`; ``density`` instead gives a fluid known by its
         density only.
+    temperature, salinity, altitude : float or None
+        With a preset name: the fluid's temperature (°C), absolute salinity (g/kg, sea water)
+        and the altitude of the air or of the water surface (m); the preset's properties are
+        computed from the published standards there
+        (:func:`~panelflow.conditions.fluids.make_fluid`). Defaults: 15 °C water, 35 g/kg sea
+        water, the standard atmosphere at sea level.
     speed : float or None
         Freestream speed in m/s (cavitation number and margin, dimensional loads).
     depth : float or None
@@ -197,6 +203,9 @@ class OperatingPoint:
     unit: str | None = None
     chord: float | None = None
     plane: Boundary | None = None
+    temperature: float | None = None
+    salinity: float | None = None
+    altitude: float | None = None
     reynolds: float | None = None
     viscous: bool = False
     critical_amplification: float | None = None
@@ -292,8 +301,18 @@ class OperatingPoint:
     def _check_fluid(self) -> None:
         if self.fluid is not None and self.density is not None:
             raise InputError("give either a fluid or a density, not both")
+        state = {k: getattr(self, k) for k in ("temperature", "salinity", "altitude")
+                 if getattr(self, k) is not None}
+        attribute = {"temperature": "temperature_c", "salinity": "salinity",
+                     "altitude": "altitude"}
+        if state and isinstance(self.fluid, Fluid) and all(
+                getattr(self.fluid, attribute[k]) == v for k, v in state.items()):
+            pass  # a fluid made from these values already (with_angles, dataclasses.replace)
+        elif state and not isinstance(self.fluid, str):
+            raise InputError(f"the {' and '.join(state)} set a preset fluid's properties: give "
+                             "the fluid by name (air, fresh-water or sea-water)")
         if isinstance(self.fluid, str):
-            object.__setattr__(self, "fluid", get_fluid(self.fluid))
+            object.__setattr__(self, "fluid", make_fluid(self.fluid, **state))
         elif self.density is not None:
             object.__setattr__(self, "fluid", user_fluid(self.density))
         elif self.fluid is not None and not isinstance(self.fluid, Fluid):
@@ -343,6 +362,10 @@ class OperatingPoint:
         if self.fluid is not None:
             out["fluid"] = self.fluid.name
             out["density_kg_m3"] = self.fluid.density
+            out["fluid_source"] = self.fluid.source
+        for key in ("temperature", "salinity", "altitude"):
+            if getattr(self, key) is not None:
+                out[key] = getattr(self, key)
         for key in ("speed", "depth", "unit", "chord"):
             if getattr(self, key) is not None:
                 out[key] = getattr(self, key)
@@ -438,6 +461,11 @@ class Problem:
         object.__setattr__(self, "error_estimate", bool(self.error_estimate))
         if not self.label:
             object.__setattr__(self, "label", ", ".join(b.name for b in bodies))
+        file_unit = outline_unit(bodies)
+        op_unit = self.operating.unit
+        if file_unit is not None and op_unit is not None and op_unit != file_unit:
+            raise InputError(f"length unit {op_unit}: the outline file's column header says "
+                             f"{file_unit}; leave the unit out or give {file_unit}")
         if self.operating.viscous:
             if len(bodies) > 1 or (self.flap is not None and self.flap.gap is not None):
                 raise InputError(
@@ -456,6 +484,12 @@ class Problem:
                 f"{plane.label} {plane.distance:g} away is more than {MAX_DISTANCE_CHORDS:g} "
                 "chords from the bodies: its effect on lift is below 0.04 % there and the image "
                 "terms lose precision; solve without it")
+
+    @property
+    def length_unit(self) -> str | None:
+        """The outline's length unit: the operating point's, else the one the outline files'
+        column headers name (None: neither; the loads then take metres)."""
+        return self.operating.unit or outline_unit(self.bodies)
 
     def with_error_estimate(self, on: bool) -> Problem:
         """The same problem with the half-panel error estimate switched on or off."""
@@ -478,6 +512,22 @@ class Problem:
         return out
 
 
+def outline_unit(bodies) -> str | None:
+    """The length unit the bodies' files name in their column headers (None when none does).
+
+    Raises
+    ------
+    InputError
+        When two bodies name different units.
+    """
+    units = {b.unit: b.name for b in bodies if getattr(b, "unit", None)}
+    if len(units) > 1:
+        raise InputError("the outlines are in different units ("
+                         + ", ".join(f"{n}: {u}" for u, n in units.items())
+                         + "); give them in one unit")
+    return next(iter(units), None)
+
+
 def _refusals(op: OperatingPoint, output: str) -> list:
     """Why ``output`` cannot be made under ``op`` (empty when it can)."""
     out = []
@@ -496,6 +546,7 @@ def _refusals(op: OperatingPoint, output: str) -> list:
     if output in ("solve", "compare", "field", "figures") and op.depth is None and (
             not op.viscous or op.reynolds is not None) and (
             op.fluid is not None or op.speed is not None):
+        # (temperature, salinity and altitude need a fluid, so they are refused with it)
         out.append("a fluid and a speed serve the cavitation check or the viscous analysis "
                    "here: " + ("the Reynolds number is given, so they are not used; leave them "
                                "out, or leave out the Reynolds number to have it from them"

@@ -83,6 +83,35 @@ def _angle_for_lift(problem: Problem, bodies, chord_line) -> float:
                      f"{plane.label} {plane.distance:g} away")
 
 
+# A suction peak within this fraction of its own body's chord from that body's nose is a nose
+# peak; one within this fraction of the main chord from a plain flap's hinge is the hinge's
+# (common practice for where a peak's separation starts).
+_NOSE_FRACTION = 0.1
+_HINGE_FRACTION = 0.05
+
+
+def _peak_place(result: Result, k: int, body) -> str:
+    """Where a deep suction peak sits, and what separation it threatens, in words."""
+    outline = result.outlines[k]
+    name = outline.name
+    le = np.asarray(outline.leading_edge, float)
+    axis = np.asarray(outline.trailing_edge.point, float) - le
+    own = float(np.dot(np.asarray(body.xy_cp_min, float) - le, axis) / np.dot(axis, axis))
+    several = len(result.outlines) > 1
+    flap = result.flap
+    if own < _NOSE_FRACTION:
+        if k == 0:
+            return f"at the leading edge of {name}: leading-edge separation likely"
+        return (f"at the nose of {name}, which the slot feeds: separation from that nose "
+                "likely (a slot peak, not the main leading edge's)")
+    if (flap is not None and flap.kind == "plain" and k == 0
+            and abs(body.x_cp_min - flap.hinge) < _HINGE_FRACTION):
+        return (f"at the flap hinge of {name} (x/c {body.x_cp_min:.3f}): separation over the "
+                "flap likely")
+    if several and k == 0 and own > 1.0 - 2.0 * _NOSE_FRACTION:
+        return (f"in the slot, on the trailing part of {name} (x/c {body.x_cp_min:.3f}): the "
+                "flow through the slot may separate")
+    return (f"on {name} at x/c {body.x_cp_min:.3f}: separation behind the peak likely")
 def _reynolds(problem: Problem, chord_outline: float) -> tuple[float, str]:
     """The Reynolds number of the viscous analysis and how it was found."""
     op = problem.operating
@@ -91,7 +120,9 @@ def _reynolds(problem: Problem, chord_outline: float) -> tuple[float, str]:
     from panelflow.conditions.fluids import UNITS
     from panelflow.conditions.viscosity import preset_kinematic_viscosity, reynolds_number
 
-    nu, where = preset_kinematic_viscosity(op.fluid.name)
+    fluid = op.fluid  # at the user's temperature, salinity and altitude
+    nu, where = preset_kinematic_viscosity(fluid.name, fluid.temperature_c, fluid.salinity,
+                                           fluid.altitude)
     chord_m = op.chord if op.chord is not None else UNITS[op.unit] * chord_outline
     re = reynolds_number(op.speed, chord_m, nu)
     return re, (f"{op.speed:g} m/s x {chord_m:.4g} m chord / kinematic viscosity of {where}")
@@ -172,9 +203,7 @@ def model_notes(result: Result) -> tuple:
             flags.append(f"|alpha| above {ALPHA_WARN_DEG:g} deg: real sections may be near stall")
         for k, b in enumerate(r.bodies):
             if b.cp_min < CP_MIN_WARN:
-                where = ("leading-edge separation likely" if k == 0 else
-                         f"separation from the nose of {names[k]} likely")
-                flags.append(f"suction peak Cp {b.cp_min:.2f} on {names[k]}: {where}")
+                flags.append(f"suction peak Cp {b.cp_min:.2f} {_peak_place(result, k, b)}")
         if flags:
             notes.append(f"alpha {r.alpha_deg:g}: " + "; ".join(flags))
     if result.compressibility is not None:

@@ -31,6 +31,10 @@ EXIT_NOT_REACHED = 3
 MAX_STREAMLINES = 200
 
 
+# Angles one Cp figure draws, one colour each (more would not be told apart)
+MAX_FIGURE_ANGLES = 8
+
+
 def _solve(problem):
     from panelflow.analysis.solve import solve
 
@@ -83,15 +87,29 @@ def _cmd_solve(ns) -> int:
 
     operating = checked_operating(ns, "solve")
     problem = problem_of(ns, load_bodies(ns.outlines), operating)
-    _guard(ns, [*(ns.output or []), ns.plot, ns.layer_plot, ns.drag_plot])
+    surfaces = ns.surface_pressures or []
+    if ns.plot and len(operating.alpha_deg) > MAX_FIGURE_ANGLES:
+        raise InputError(f"--plot draws at most {MAX_FIGURE_ANGLES} angles on one Cp figure "
+                         f"(this run has {len(operating.alpha_deg)}, which no reader could tell "
+                         "apart); give fewer angles for the figure, or draw the polar with "
+                         "compare --plot")
+    _guard(ns, [*(ns.output or []), *surfaces, ns.plot, ns.layer_plot, ns.drag_plot])
     check_outputs(ns.output or [], overwrite=ns.force)  # before solving: fail early, write nothing
+    if surfaces:
+        from panelflow.output.surface_files import check_surface_outputs
+
+        check_surface_outputs(surfaces, overwrite=ns.force)
     _check_figure(ns)
     result = _solve(problem)
     written = [write_result(result, path, overwrite=ns.force) for path in ns.output or []]
+    if surfaces:
+        from panelflow.output.surface_files import write_surface
+
+        written += [write_surface(result, path, overwrite=ns.force) for path in surfaces]
     if ns.plot:
         from panelflow.output.figures import surface_cp_figure
 
-        written.append(surface_cp_figure(result, ns.plot, float(result.alpha_deg[0]),
+        written.append(surface_cp_figure(result, ns.plot, list(result.alpha_deg),
                                          overwrite=ns.force))
     written += _viscous_figures(ns, [result])
     if ns.json:
@@ -141,7 +159,10 @@ def _cmd_field(ns) -> int:
         points, shape = grid_points(window, resolution)
     else:
         shape = None
-    flow = flow_field(result, points, [alpha], shape)
+    from panelflow.cli.progress import bar
+
+    with bar(len(points), "point", ns.progress) as update:
+        flow = flow_field(result, points, [alpha], shape, progress=update)
     if flow.inside.all():
         raise InputError(f"all {len(flow.points)} field points lie inside a body or beyond the "
                          "plane: there is no flow to write")
@@ -172,7 +193,13 @@ def _cmd_compare(ns) -> int:
         from panelflow.output.tables import check_table_outputs
 
         check_table_outputs(ns.output, ns.force)
-    results = [_solve(p) for p in problems]
+    from panelflow.cli.progress import bar
+
+    results = []
+    with bar(len(problems), "case", ns.progress) as update:
+        for p in problems:
+            results.append(_solve(p))
+            update(1)
     labels = [r.label for r in results]
     written = []
     if ns.output or ns.json:
@@ -226,7 +253,8 @@ def _cmd_loads(ns) -> int:
         raise InputError("give the load file(s) with -o FILE (.json, .csv, .vtu, .inp)")
     if ns.absolute and ns.static_pressure is not None:
         raise InputError("give either --absolute or --static-pressure, not both")
-    scale = {"unit": operating.unit, "chord": operating.chord, "span": ns.span}
+    scale = {"unit": problem.length_unit if operating.chord is None else None,
+             "chord": operating.chord, "span": ns.span}
     fluid, speed = operating.fluid, operating.speed
     conditions = (Conditions.absolute(fluid, speed, **scale) if ns.absolute else
                   Conditions(fluid, speed, static_pressure=ns.static_pressure, **scale))
@@ -244,18 +272,23 @@ def _cmd_loads(ns) -> int:
         sys.stdout.write(f"angle of attack for cl = {operating.target_cl:g}: "
                          f"{result.alpha_deg[0]:.4f} deg\n")
     sys.stdout.write(equilibrium_text(loads))
+    sys.stdout.write("".join(f"{n}\n" for n in loads.notes if n.startswith("warning: ")))
     sys.stdout.write("".join(f"caution: {line}\n" for line in loads.cautions))
     _wrote(written)
     return 0
 
 
 def _cmd_check(ns) -> int:
+    from panelflow.geometry.arguments import arrangements
     from panelflow.geometry.check import inspect, overlaps
     from panelflow.output.report import check_table
 
-    bodies = load_bodies(ns.outlines)
-    reports = [inspect(o) for o in bodies]
-    clashes = overlaps(bodies)
+    # each file (or spec) is checked on its own; overlaps only within one arrangement
+    reports, clashes = [], []
+    for group in arrangements(ns.outlines):
+        bodies = load_bodies([ns.outlines[k] for k in group])
+        reports += [inspect(o) for o in bodies]
+        clashes += overlaps(bodies)
     if ns.json:
         rec = [{**{k: getattr(r, k) for k in r.__dataclass_fields__}, "ok": r.ok} for r in reports]
         json.dump({"outlines": rec, "problems": clashes}, sys.stdout, indent=1, default=list)
@@ -601,9 +634,15 @@ def build_parser() -> argparse.ArgumentParser:
     s.add_argument("outlines", nargs="+", metavar="OUTLINE", help=outline_help)
     s.add_argument("--json", action="store_true", help="print machine-readable JSON")
     s.add_argument("-o", "--output", action="append", metavar="FILE",
-                   help="also write the results (.json: everything; .csv: one row per angle)")
+                   help="also write the results (.json: everything; .csv: one row per angle, "
+                   "its notes in FILE.about.json)")
+    s.add_argument("--surface-pressures", action="append", metavar="FILE",
+                   help="write Cp at every panel node of every body and angle, one row each "
+                   "(.csv or .json): angle, body, point, x, y, x/c, arc length, Cp (and Cp "
+                   "at the Mach number)")
     s.add_argument("--plot", metavar="FIGURE",
-                   help="surface Cp figure (.png, .svg or .pdf) at the first angle")
+                   help=f"surface Cp figure (.png, .svg or .pdf) of every angle (at most "
+                   f"{MAX_FIGURE_ANGLES}, one colour each)")
     _add_viscous_figures(s)
     s.set_defaults(func=_cmd_solve)
 
@@ -620,6 +659,8 @@ def build_parser() -> argparse.ArgumentParser:
     f.add_argument("--plot", metavar="FIGURE", help="Cp contours and streamlines (.png/.svg/.pdf)")
     f.add_argument("--streamlines", type=int, default=17, metavar="N",
                    help="streamlines drawn in the figure (default 17)")
+    f.add_argument("--progress", action="store_true",
+                   help="show the progress bar even when stderr is not a terminal")
     f.set_defaults(func=_cmd_field)
 
     m = sub.add_parser("compare", parents=[common, _solving_parent(many)],
@@ -633,6 +674,8 @@ def build_parser() -> argparse.ArgumentParser:
     m.add_argument("-o", "--output", action="append", metavar="FILE",
                    help="table with one row per case and angle (.csv or .json)")
     m.add_argument("--json", action="store_true", help="print the table as JSON")
+    m.add_argument("--progress", action="store_true",
+                   help="show the progress bar even when stderr is not a terminal")
     _add_viscous_figures(m)
     m.set_defaults(func=_cmd_compare)
 
@@ -674,7 +717,10 @@ def build_parser() -> argparse.ArgumentParser:
     ld.set_defaults(func=_cmd_loads)
 
     c = sub.add_parser("check", parents=[common],
-                       help="geometry report of outlines (exit 1 if any is unusable)")
+                       help="geometry report of outlines (exit 1 if any is unusable)",
+                       description="Check each outline file or spec on its own. Bodies are "
+                       "checked for overlaps within one arrangement: the bodies of one file, "
+                       "and any argument placed with @move= joins the one before it.")
     c.add_argument("outlines", nargs="+", metavar="OUTLINE")
     c.add_argument("--json", action="store_true", help="print machine-readable JSON")
     c.set_defaults(func=_cmd_check)

@@ -27,7 +27,8 @@ NUMERIC_OPTIONS = {"--alpha": True, "--ref": False, "--cl": False, "--about": Fa
                    "--resolution": False, "--flap-gap": False, "--flap-radius": False,
                    "--node-tolerance": False, "--smooth-within": False, "--reynolds": False,
                    "--critical-amplification": False, "--turbulence-level": False,
-                   "--trip-upper": False, "--trip-lower": False}
+                   "--trip-upper": False, "--trip-lower": False,
+                   "--temperature": False, "--salinity": False, "--altitude": False}
 
 
 def join_numeric_values(argv):
@@ -104,7 +105,18 @@ def add_condition_options(g, angles_help: str) -> None:
     g.add_argument("--mach-rule",
                    choices=("karman-tsien", "prandtl-glauert", "laitone"),
                    help="compressibility correction (default karman-tsien)")
-    g.add_argument("--fluid", metavar="NAME", help="air, fresh-water or sea-water")
+    g.add_argument("--fluid", metavar="NAME",
+                   help="air, fresh-water or sea-water: properties from published standards "
+                   "(TEOS-10 density, IAPWS-IF97 vapour pressure, ISO 2533 atmosphere) at the "
+                   "state below")
+    g.add_argument("--temperature", type=float, metavar="DEGC",
+                   help="the fluid's temperature in degrees Celsius (default: water 15, air "
+                   "the standard atmosphere's at the altitude)")
+    g.add_argument("--salinity", type=float, metavar="G_PER_KG",
+                   help="sea water's absolute salinity in g/kg (default 35)")
+    g.add_argument("--altitude", type=float, metavar="METRES",
+                   help="altitude of the air, or of the water surface (its ambient pressure), "
+                   "in metres above sea level (default 0)")
     g.add_argument("--density", type=float, metavar="RHO",
                    help="fluid density in kg/m^3 (instead of --fluid)")
     g.add_argument("--speed", type=float, metavar="V", help="freestream speed in m/s")
@@ -164,7 +176,8 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
                           viscous=ns.viscous,
                           critical_amplification=ns.critical_amplification,
                           turbulence_level=ns.turbulence_level, trip_upper=ns.trip_upper,
-                          trip_lower=ns.trip_lower)
+                          trip_lower=ns.trip_lower, temperature=ns.temperature,
+                          salinity=ns.salinity, altitude=ns.altitude)
 
 
 def flap_of(ns) -> Flap | None:

@@ -7,40 +7,100 @@ static pressure that absolute pressures are measured from.
 
 Presets and their sources
 -------------------------
-``air``
-    ISO 2533:1975 *Standard Atmosphere*, sea level: density 1.225 kg/m³, pressure 101 325 Pa,
-    temperature 288.15 K. These three are the standard's defining sea-level values; the density
-    follows from the others by the ideal-gas law with the standard's gas constant for air
-    (checked in ``tests/test_fluids.py``).
-``fresh-water``
-    Fresh water at 15 °C, ITTC Recommended Procedure 7.5-02-01-03 *Fresh Water and Seawater
-    Properties*: density 999.10 kg/m³ (from memory; checked against the Tanaka et al. (2001)
-    density correlation in the tests). Vapour pressure 1705.7 Pa: the IAPWS-IF97 saturation
-    pressure at 288.15 K (computed in the tests; the ITTC table's figure, about 1705 Pa from
-    memory, agrees).
-``sea-water``
-    Sea water at 15 °C and salinity 35 g/kg, same ITTC procedure: density 1025.90 kg/m³ (from
-    memory; checked against the UNESCO 1981 one-atmosphere equation of state in the tests). The
-    vapour pressure given is fresh water's: sea water's is about 2 % lower (from memory), so the
-    fresh-water figure makes a cavitation check err on the safe side.
+Each preset is computed from a published standard at the temperature, salinity and altitude the
+user gives (:func:`make_fluid`); the defaults are 15 °C, 35 g/kg for sea water and sea level.
 
-All three presets take the ISO 2533 sea-level pressure as the ambient pressure (the water
-presets: at the water surface); a section under water sees this plus ``rho g depth``.
+``air``
+    ISO 2533:1975 *Standard Atmosphere* at the altitude (-500 to 20 000 m): temperature,
+    pressure and density from the standard's formulas (:mod:`panelflow.conditions.viscosity`).
+    With a temperature given, the standard's pressure at that altitude and the ideal-gas law
+    with the standard's gas constant for air give the density.
+``fresh-water``, ``sea-water``
+    Density from TEOS-10, the International Thermodynamic Equation of Seawater 2010 (IOC, SCOR
+    and IAPSO 2010), through the ``gsw`` package (the Gibbs SeaWater toolbox that implements
+    it): absolute salinity 0 g/kg (fresh water) or as given (sea water, default 35 g/kg), in-situ
+    temperature 0-40 °C, at the surface. Vapour pressure from the saturation-pressure equation
+    of IAPWS-IF97 (IAPWS R7-97, region 4) at the temperature; for sea water the pure-water
+    value is taken: salt lowers the vapour pressure, so the cavitation number comes out a
+    little low and the check errs on the safe side. Ambient pressure: the ISO 2533 pressure at
+    the altitude of the water surface (sea level by default).
+
+Checked in ``tests/test_fluids.py`` against the Tanaka et al. (2001) water-density table, the
+UNESCO 1981 equation of state of sea water, the IF97 verification values and the ``iapws``
+package, and the ``fluids`` package's standard atmosphere.
 """
 
 from __future__ import annotations
 
+import functools
 import math
 from dataclasses import dataclass
 
 from panelflow.errors import InputError
 
-# ISO 2533:1975 sea-level values; the ambient pressure of every preset.
+# ISO 2533:1975 sea-level values; the ambient pressure of every preset at sea level.
 STANDARD_SEA_LEVEL_PRESSURE = 101325.0  # Pa
 STANDARD_SEA_LEVEL_TEMPERATURE = 288.15  # K
+KELVIN = 273.15  # K at 0 degC (the definition of the Celsius scale)
+
+DEFAULT_WATER_TEMPERATURE = 15.0  # degC
+DEFAULT_SEA_SALINITY = 35.0  # g/kg, absolute salinity of the open ocean (TEOS-10's reference)
+# Ranges of the formulas used here (TEOS-10's oceanographic range, the standard atmosphere)
+WATER_TEMPERATURE_RANGE = (0.0, 40.0)  # degC
+SALINITY_RANGE = (0.0, 42.0)  # g/kg
+AIR_TEMPERATURE_RANGE = (-60.0, 60.0)  # degC, near the ground and on small craft
+ALTITUDE_RANGE = (-500.0, 20000.0)  # m
 
 # Metres per unit of length (exact by the definitions of the inch and foot, 1959).
 UNITS = {"m": 1.0, "cm": 0.01, "mm": 0.001, "in": 0.0254, "ft": 0.3048}
+
+# IAPWS-IF97 (IAPWS R7-97(2012)), region 4: coefficients n1..n10 of the saturation equation.
+_IF97_N = (0.11670521452767e4, -0.72421316703206e6, -0.17073846940092e2, 0.12020824702470e5,
+           -0.32325550322333e7, 0.14915108613530e2, -0.48232657361591e4, 0.40511340542057e6,
+           -0.23855557567849, 0.65017534844798e3)
+
+
+def saturation_pressure(temperature_c: float) -> float:
+    """Vapour (saturation) pressure of pure water in Pa, IAPWS-IF97 region 4 (0-370 °C)."""
+    t = _in_range("water temperature", temperature_c, 0.0, 370.0, "degC") + KELVIN
+    n = _IF97_N
+    th = t + n[8] / (t - n[9])
+    a = th * th + n[0] * th + n[1]
+    b = n[2] * th * th + n[3] * th + n[4]
+    c = n[5] * th * th + n[6] * th + n[7]
+    return 1e6 * (2.0 * c / (-b + math.sqrt(b * b - 4.0 * a * c))) ** 4
+
+
+def water_density_teos10(temperature_c: float, salinity: float = 0.0) -> float:
+    """Density of fresh or sea water at the surface, kg/m³, by TEOS-10 (the ``gsw`` package).
+
+    Parameters
+    ----------
+    temperature_c : float
+        In-situ temperature, °C (0-40).
+    salinity : float
+        Absolute salinity, g/kg (0 fresh water, 0-42).
+    """
+    t = _in_range("water temperature", temperature_c, *WATER_TEMPERATURE_RANGE, "degC")
+    sa = _in_range("salinity", salinity, *SALINITY_RANGE, "g/kg")
+    try:
+        import gsw
+    except ImportError:  # pragma: no cover - a dependency
+        raise InputError("water properties need the gsw package (TEOS-10): pip install gsw") \
+            from None
+    ct = gsw.CT_from_t(sa, t, 0.0)  # sea pressure 0 dbar: at the surface
+    return float(gsw.rho(sa, ct, 0.0))
+
+
+def _in_range(name: str, value, lo: float, hi: float, unit: str) -> float:
+    try:
+        v = float(value)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} must be a number, got {value!r}") from None
+    if not (math.isfinite(v) and lo <= v <= hi):
+        raise InputError(f"{name} {v:g} {unit} is outside {lo:g} to {hi:g} {unit}, the range "
+                         "of the standard's formulas used here")
+    return v
 
 
 def _positive(option: str, value) -> float:
@@ -70,7 +130,11 @@ class Fluid:
     temperature_c : float or None
         °C, the temperature the values belong to.
     source : str
-        Where the values come from.
+        Where the values come from, each named.
+    salinity : float or None
+        Absolute salinity in g/kg (water).
+    altitude : float or None
+        Altitude of the air, or of the water surface, in metres.
     """
 
     name: str
@@ -79,6 +143,8 @@ class Fluid:
     vapour_pressure: float | None = None
     temperature_c: float | None = None
     source: str = ""
+    salinity: float | None = None
+    altitude: float | None = None
 
     def __post_init__(self):
         object.__setattr__(self, "density", _positive("density", self.density))
@@ -89,16 +155,104 @@ class Fluid:
                                  f"got {value:g}")
 
 
-FLUIDS = {
-    "air": Fluid("air", 1.225, STANDARD_SEA_LEVEL_PRESSURE, None, 15.0,  # 288.15 K
-                 "ISO 2533:1975 standard atmosphere, sea level"),
-    "fresh-water": Fluid("fresh-water", 999.10, STANDARD_SEA_LEVEL_PRESSURE, 1705.7, 15.0,
-                         "ITTC 7.5-02-01-03 fresh water at 15 degC (density from memory); "
-                         "vapour pressure IAPWS-IF97"),
-    "sea-water": Fluid("sea-water", 1025.90, STANDARD_SEA_LEVEL_PRESSURE, 1705.7, 15.0,
-                       "ITTC 7.5-02-01-03 sea water at 15 degC, salinity 35 g/kg (density from "
-                       "memory); vapour pressure: fresh water's, on the safe side"),
-}
+PRESETS = ("air", "fresh-water", "sea-water")
+
+
+def make_fluid(name: str, temperature: float | None = None, salinity: float | None = None,
+               altitude: float | None = None) -> Fluid:
+    """A preset fluid at a temperature, salinity and altitude, from the published standards.
+
+    Parameters
+    ----------
+    name : str
+        ``"air"``, ``"fresh-water"`` or ``"sea-water"`` (case, ``-``, ``_`` and spaces
+        ignored).
+    temperature : float, optional
+        °C. Water: default 15 (0-40). Air: default the standard atmosphere's at the altitude.
+    salinity : float, optional
+        Absolute salinity, g/kg: sea water only (default 35, 0-42).
+    altitude : float, optional
+        Metres above sea level of the air, or of the water surface (default 0).
+
+    Returns
+    -------
+    Fluid
+        With ``source`` naming each standard and the state it was evaluated at.
+
+    Raises
+    ------
+    InputError
+        An unknown name, a value out of the formulas' range, salinity for air or fresh water,
+        or water that would boil at that altitude.
+    """
+    from panelflow.conditions.viscosity import GAS_CONSTANT_AIR, standard_atmosphere
+
+    key = _preset_key(name)
+    h = 0.0 if altitude is None else _in_range("altitude", altitude, *ALTITUDE_RANGE, "m")
+    atmosphere = standard_atmosphere(h)
+    where = "sea level" if h == 0.0 else f"{h:g} m"
+    if key == "air":
+        if salinity is not None:
+            raise InputError("salinity is for sea water, not air")
+        if temperature is None:
+            t = atmosphere["temperature"] - KELVIN
+            rho = atmosphere["density"]
+            source = (f"ISO 2533:1975 standard atmosphere at {where}: {t:.2f} degC, "
+                      f"{atmosphere['pressure']:.0f} Pa")
+        else:
+            t = _in_range("air temperature", temperature, *AIR_TEMPERATURE_RANGE, "degC")
+            rho = atmosphere["pressure"] / (GAS_CONSTANT_AIR * (t + KELVIN))
+            source = (f"pressure {atmosphere['pressure']:.0f} Pa of the ISO 2533:1975 standard "
+                      f"atmosphere at {where}; density at {t:g} degC by the ideal-gas law with "
+                      f"the standard's gas constant for air, {GAS_CONSTANT_AIR} J/(kg K)")
+        return Fluid("air", rho, atmosphere["pressure"], None, t, source, None, h)
+    t = (DEFAULT_WATER_TEMPERATURE if temperature is None else
+         _in_range("water temperature", temperature, *WATER_TEMPERATURE_RANGE, "degC"))
+    if key == "freshwater":
+        if salinity not in (None, 0, 0.0):
+            raise InputError(f"salinity {salinity:g} g/kg: fresh water has none; use sea-water")
+        sa = 0.0
+    else:
+        sa = (DEFAULT_SEA_SALINITY if salinity is None else
+              _in_range("salinity", salinity, *SALINITY_RANGE, "g/kg"))
+    rho = water_density_teos10(t, sa)
+    pv = saturation_pressure(t)
+    p_amb = atmosphere["pressure"]
+    if pv >= p_amb:
+        raise InputError(f"water at {t:g} degC boils at the pressure of {where} "
+                         f"({p_amb:.0f} Pa): its vapour pressure is {pv:.0f} Pa")
+    vapour = ("IAPWS-IF97 saturation-pressure equation (IAPWS R7-97, region 4) at "
+              f"{t:g} degC")
+    if key == "seawater":
+        vapour += (", pure water's value: salt lowers the vapour pressure, so the cavitation "
+                   "number comes out a little low, on the safe side")
+    source = (f"density: TEOS-10 (IOC, SCOR and IAPSO 2010, through the gsw package) at "
+              f"{t:g} degC and absolute salinity {sa:g} g/kg; vapour pressure: {vapour}; "
+              f"ambient pressure at the water surface: ISO 2533:1975 standard atmosphere at "
+              f"{where}")
+    return Fluid("fresh-water" if key == "freshwater" else "sea-water", rho, p_amb, pv, t,
+                 source, sa, h)
+
+
+def _preset_key(name) -> str:
+    key = "".join(ch for ch in str(name).lower() if ch.isalnum())
+    if key not in ("air", "freshwater", "seawater"):
+        raise InputError(f"unknown fluid {name!r}; use one of {', '.join(PRESETS)} or give a "
+                         "density")
+    return key
+
+
+@functools.lru_cache(maxsize=None)
+def _default(name: str) -> Fluid:
+    return make_fluid(name)
+
+
+def __getattr__(attr):
+    # FLUIDS, the presets at their defaults (15 degC water, 35 g/kg sea water, sea level), is
+    # made on first use: TEOS-10's package stays out of the command line's start-up
+    if attr == "FLUIDS":
+        return {name: _default(name) for name in PRESETS}
+    raise AttributeError(f"module {__name__!r} has no attribute {attr!r}")
 
 
 def get_fluid(name: str) -> Fluid:
@@ -109,11 +263,8 @@ def get_fluid(name: str) -> Fluid:
     InputError
         For an unknown name; the message lists the presets.
     """
-    key = "".join(ch for ch in str(name).lower() if ch.isalnum())
-    for preset, fluid in FLUIDS.items():
-        if key == preset.replace("-", ""):
-            return fluid
-    raise InputError(f"unknown fluid {name!r}; use one of {', '.join(FLUIDS)} or give a density")
+    key = _preset_key(name)
+    return _default(next(p for p in PRESETS if p.replace("-", "") == key))
 
 
 def user_fluid(density: float) -> Fluid:

@@ -129,8 +129,20 @@ PRESET_STATES = {"fresh-water": ("water", 15.0, 0.0), "sea-water": ("water", 15.
                  "air": ("air", 0.0, None)}
 
 
-def preset_kinematic_viscosity(name: str) -> tuple[float, str]:
+def preset_kinematic_viscosity(name: str, temperature_c: float | None = None,
+                               salinity: float | None = None,
+                               altitude: float | None = None) -> tuple[float, str]:
     """Kinematic viscosity of a fluid preset (m²/s) and the sentence saying where it comes from.
+
+    Parameters
+    ----------
+    name : str
+        ``"fresh-water"``, ``"sea-water"`` or ``"air"``.
+    temperature_c, salinity, altitude : float, optional
+        The state the fluid was made for (:func:`panelflow.conditions.fluids.make_fluid`);
+        each left out takes the preset's state of :data:`PRESET_STATES`. Air at a given
+        temperature takes Sutherland's law there and the ideal-gas density at the standard
+        atmosphere's pressure of the altitude.
 
     Raises
     ------
@@ -143,9 +155,18 @@ def preset_kinematic_viscosity(name: str) -> tuple[float, str]:
                          "directly")
     kind, a, b = state
     if kind == "water":
-        nu = water_kinematic_viscosity(a, b)
-        what = ("fresh water" if not b else f"sea water of {b:g} g/kg") + f" at {a:g} °C"
+        t = a if temperature_c is None else temperature_c
+        s = b if salinity is None else salinity
+        nu = water_kinematic_viscosity(t, s)
+        what = ("fresh water" if not s else f"sea water of {s:g} g/kg") + f" at {t:g} °C"
         return nu, f"{what}, Sharqawy, Lienhard & Zubair (2010): {nu:.4g} m²/s"
-    nu = air_kinematic_viscosity(a)
-    return nu, (f"ISO 2533 standard atmosphere at {a:g} m, Sutherland's law: "
-                f"{nu:.4g} m²/s")
+    h = a if altitude is None else altitude
+    atmosphere = standard_atmosphere(h)
+    if temperature_c is None or abs(temperature_c + 273.15 - atmosphere["temperature"]) < 1e-9:
+        nu = atmosphere["kinematic_viscosity"]
+        return nu, (f"ISO 2533 standard atmosphere at {h:g} m, Sutherland's law: "
+                    f"{nu:.4g} m²/s")
+    t_k = temperature_c + 273.15
+    nu = air_dynamic_viscosity(t_k) * GAS_CONSTANT_AIR * t_k / atmosphere["pressure"]
+    return nu, (f"air at {temperature_c:g} °C and the ISO 2533 standard atmosphere's pressure "
+                f"at {h:g} m, Sutherland's law and the ideal-gas law: {nu:.4g} m²/s")

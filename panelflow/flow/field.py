@@ -297,7 +297,7 @@ def system_for(source, alpha_deg: float) -> System:
     return pick(index(alpha_deg))
 
 
-def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
+def flow_field(source, points, alpha_deg, shape=None, progress=None) -> FlowField:
     """Velocity and Cp at ``points`` for each angle of attack.
 
     Evaluated in chunks of ``FIELD_CHUNK`` points written straight into the result arrays: the
@@ -314,6 +314,8 @@ def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
         Angles of attack in degrees from the input x-axis.
     shape : tuple, optional
         Recorded grid shape.
+    progress : callable, optional
+        Called with the number of points done after each chunk (a progress bar's update).
 
     Returns
     -------
@@ -339,6 +341,8 @@ def flow_field(source, points, alpha_deg, shape=None) -> FlowField:
             w = ca * w_unit[None, :, 0] + sa * w_unit[None, :, 1]
             u[:, sl], v[:, sl] = w.real, -w.imag
             cp[:, sl] = 1.0 - (w.real * w.real + w.imag * w.imag)
+            if progress is not None:
+                progress(len(pts[sl]))
     return FlowField(pts, alpha, u, v, cp, inside, tuple(shape) if shape else (len(pts),))
 
 

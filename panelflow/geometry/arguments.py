@@ -147,6 +147,25 @@ def unique_names(outlines) -> list:
     return unique
 
 
+def arrangements(args) -> list:
+    """OUTLINE arguments grouped into arrangements: lists of argument indices.
+
+    Each argument is an arrangement of its own (a file with several bodies is one), except
+    that an argument placed with ``@move=`` joins the arrangement before it: moving a body is
+    how a second element is put beside the first. ``check`` looks for overlaps only within
+    one arrangement, so files checked together are not taken for one assembly.
+    """
+    groups: list = []
+    for k, arg in enumerate(args):
+        _, steps = split_transforms(arg)
+        moved = any(step.partition("=")[0].strip().lower() == "move" for step in steps)
+        if moved and groups:
+            groups[-1].append(k)
+        else:
+            groups.append([k])
+    return groups
+
+
 def load_bodies(args) -> list:
     """Outlines of OUTLINE arguments, transforms applied, names made unique."""
     from panelflow.geometry.readers import load_outlines

@@ -192,6 +192,9 @@ class Outline:
         True for points generated from a defining equation at the density a solve needs (the
         built-in sections): the curve through them is the section to far below the panels'
         error, so the error estimate adds no share for the input's own resolution.
+    unit : str or None
+        Length unit the input file's column header named (``"m"``, ``"cm"``, ``"mm"``,
+        ``"in"``, ``"ft"``), kept through the transforms; None when the file named none.
     """
 
     name: str
@@ -200,6 +203,7 @@ class Outline:
     source: str = ""
     lines: np.ndarray | None = field(default=None, repr=False, compare=False)
     exact: bool = field(default=False, repr=False, compare=False)
+    unit: str | None = field(default=None, repr=False, compare=False)
     trailing_edge: TrailingEdge = field(init=False, repr=False, compare=False)
     _leading_edge: np.ndarray = field(init=False, repr=False, compare=False)
 
@@ -234,7 +238,7 @@ class Outline:
     @classmethod
     def from_points(cls, points, name: str = "body", source: str = "",
                     starts_at_trailing_edge: bool = True, lines=None,
-                    exact: bool = False) -> "Outline":
+                    exact: bool = False, unit: str | None = None) -> "Outline":
         """Normalise any closed loop of points into an :class:`Outline`.
 
         Parameters
@@ -296,7 +300,7 @@ class Outline:
 
         def make(loop_idx, kind):
             return cls(name, poly[loop_idx], kind, source,
-                       None if in_lines is None else in_lines[idx[loop_idx]], exact)
+                       None if in_lines is None else in_lines[idx[loop_idx]], exact, unit)
 
         feature = None
         if starts_at_trailing_edge:
@@ -382,8 +386,9 @@ class Outline:
         if self.kind == SMOOTH:  # start again at the downstream end of the turned body
             order = _smooth_loop(pts[:-1], np.arange(len(pts) - 1))
             return Outline(self.name, pts[:-1][order], self.kind, self.source,
-                           None if self.lines is None else self.lines[:-1][order], self.exact)
-        return Outline(self.name, pts, self.kind, self.source, self.lines, self.exact)
+                           None if self.lines is None else self.lines[:-1][order], self.exact,
+                           self.unit)
+        return Outline(self.name, pts, self.kind, self.source, self.lines, self.exact, self.unit)
 
     def scaled(self, factor: float, about=(0.0, 0.0)) -> "Outline":
         """Return a copy scaled by ``factor`` about the point ``about``."""
@@ -407,7 +412,8 @@ class Outline:
         return self._mapped(c + (self.points - c) @ rot.T)
 
     def renamed(self, name: str) -> "Outline":
-        return Outline(name, self.points, self.kind, self.source, self.lines, self.exact)
+        return Outline(name, self.points, self.kind, self.source, self.lines, self.exact,
+                       self.unit)
 
     def __repr__(self) -> str:
         te = self.trailing_edge

@@ -174,7 +174,12 @@ def local_residuals(points: np.ndarray, closed: bool, excluded=(), degree: int =
     vt = np.swapaxes(vander, 1, 2)
     # least-squares weights (V^T V)^-1 V^T by the normal equations: u lies in [-1, 1], so they
     # are well conditioned for these small degrees, and far cheaper than an SVD per point
-    pinv = np.linalg.solve(vt @ vander, vt)  # (n, degree + 1, k)
+    try:
+        pinv = np.linalg.solve(vt @ vander, vt)  # (n, degree + 1, k)
+    except np.linalg.LinAlgError:
+        # a degenerate stencil (met on a plain flap with a tight hinge rounding, naca0012 with
+        # radius 0.003 at 10 deg): the minimum-norm least-squares weights by the SVD instead
+        pinv = np.linalg.pinv(vander)
     w0, w1 = pinv[:, 0, :], pinv[:, 1, :]  # value and slope at the point
     q = pts[nb % n]  # (n, k, 2)
     pred = np.einsum("nk,nkd->nd", w0, q)

@@ -33,6 +33,33 @@ The body name is its title line; a body without one is named after the file stem
 line directly. Blank lines that are not followed by a
 title line only separate the two surfaces of layout (b).
 
+Column headers and units
+------------------------
+A header line names the columns: ``x y``, ``x/c, y/c``, ``x_mm,y_mm``, ``x [in]  y [in]``,
+``x (m); y (m)``. A unit in it (``m``, ``cm``, ``mm``, ``in``, ``ft`` and their words) is the
+outline's length unit (``Outline.unit``): the loads take it, and a command-line unit that
+disagrees is refused. A header that names a unit panelflow does not know, or two different
+units, is refused with the line.
+
+Decimal commas
+--------------
+Values with a decimal comma are read when the values are separated by semicolons
+(``0,25;0,031``) or by blanks with a comma in every value (``0,25 0,031``), as spreadsheets in
+many locales write them. A comma between two numbers with nothing else is a separator.
+
+panelflow's own layout (what it writes)
+---------------------------------------
+One header row of named columns, then one point per row::
+
+    body,point,x,y
+    naca2412,1,1.000084,0.00126
+    ...
+
+``body`` groups the points into bodies (in order of first appearance), ``point`` numbers them
+along the outline from the upper trailing edge; ``x`` and ``y`` may carry a unit (``x_mm``).
+Any table whose header names more than two columns, two of them x and y, is read this way
+(other columns are ignored), so a spreadsheet export with extra columns reads as it is.
+
 Registry
 --------
 :data:`READERS` maps a lower-case file extension to its reader; :func:`register_reader` adds one.
@@ -69,6 +96,12 @@ Reader = Callable[[Path], "list[Outline]"]
 READERS: dict[str, Reader] = {}
 
 _SPLIT = re.compile(r"[,\s]+")
+_DECIMAL_COMMA = re.compile(r"[-+]?\d*,\d+(?:[eE][-+]?\d+)?")
+# unit words of column headers -> panelflow's unit names
+UNIT_WORDS = {"m": "m", "metre": "m", "metres": "m", "meter": "m", "meters": "m",
+              "cm": "cm", "mm": "mm", "millimetre": "mm", "millimetres": "mm",
+              "millimeter": "mm", "millimeters": "mm", "in": "in", "inch": "in",
+              "inches": "in", '"': "in", "ft": "ft", "foot": "ft", "feet": "ft"}
 _COLUMN_LABEL = re.compile(r"[(\[]?[xy]([^a-z].*)?", re.IGNORECASE)
 # Points of one body read from a file: checking the points costs about 60 microseconds each,
 # so this keeps a file's checks within seconds
@@ -137,6 +170,7 @@ class _Body:
         self.rows: list[tuple[float, float]] = []
         self.lines: list[int] = []
         self.breaks: list[int] = []  # row indices where a blank line came before
+        self.unit: str | None = None  # from a column header
 
     def add(self, x: float, y: float, line: int, after_blank: bool) -> None:
         if after_blank and self.rows:
@@ -145,16 +179,74 @@ class _Body:
         self.lines.append(line)
 
 
+def _decimal_commas(content: str) -> str:
+    """A line with decimal commas (``0,25;0,031`` or ``0,25 0,031``) in decimal points."""
+    if ";" in content:
+        parts = [p.strip() for p in content.split(";")]
+        if all(_DECIMAL_COMMA.fullmatch(p) or _as_number(p) is not None for p in parts if p):
+            return " ".join(p.replace(",", ".") for p in parts if p)
+        return content
+    tokens = content.split()
+    if len(tokens) >= 2 and all(_DECIMAL_COMMA.fullmatch(t) for t in tokens):
+        return " ".join(t.replace(",", ".") for t in tokens)
+    return content
+
+
+def _header_unit(content: str, path: Path, number: int):
+    """(True, unit or None) when ``content`` is a column header of x and y, else (False, None).
+
+    Raises InputError for a header that names an unknown unit or two different ones.
+    """
+    words = re.sub(r"[()\[\]_,;:\t]", " ", content.lower()).split()
+    if len(words) < 2 or words[0] not in ("x", "x/c"):
+        return False, None
+    try:
+        k = next(i for i, w in enumerate(words[1:], start=1) if w in ("y", "y/c"))
+    except StopIteration:
+        return False, None
+    x_unit, y_unit = words[1:k], words[k + 1:]
+    found = []
+    for part in (x_unit, y_unit):
+        if not part:
+            continue
+        unit = UNIT_WORDS.get(" ".join(part))
+        if unit is None:
+            if len(part) > 2:  # more words than a unit: a title that starts with x
+                return False, None
+            raise InputError(f"{path}: line {number}: column header {content!r} names the unit "
+                             f"{' '.join(part)!r}, which panelflow does not know; use m, cm, mm, "
+                             "in or ft (or leave the unit out and give --unit)")
+        found.append(unit)
+    if len(set(found)) > 1:
+        raise InputError(f"{path}: line {number}: column header {content!r} gives x and y in "
+                         f"different units ({found[0]}, {found[1]})")
+    if found and (words[0] == "x/c" or words[k] == "y/c"):
+        raise InputError(f"{path}: line {number}: column header {content!r} gives chord "
+                         f"fractions (x/c) and a unit ({found[0]}) at once")
+    return True, (found[0] if found else None)
+
+
 def _parse_table(text: str, path: Path) -> list[_Body]:
     bodies: list[_Body] = []
     current: _Body | None = None
     after_blank = True  # the start of the file counts as "after a blank line"
     for number, raw in enumerate(text.splitlines(), start=1):
-        content = raw.split("#", 1)[0].strip()
+        content = _decimal_commas(raw.split("#", 1)[0].strip())
         if not content:
             if not raw.strip():
                 after_blank = True
             continue  # comment-only lines keep the state
+        header, unit = _header_unit(content, path, number)
+        if header:
+            if current is not None and current.rows:
+                raise InputError(f"{path}: line {number}: a column header among the points "
+                                 "(a new body starts with a title line after a blank line)")
+            if current is None:
+                current = _Body(None, number)
+                bodies.append(current)
+            current.unit = unit
+            after_blank = False
+            continue
         tokens = [t for t in _SPLIT.split(content) if t]
         values = [_as_number(t) for t in tokens]
         first_line = not bodies
@@ -166,13 +258,21 @@ def _parse_table(text: str, path: Path) -> list[_Body]:
                 after_blank = False
                 continue
             if current is not None and not current.rows and _title(content) is None:
-                continue  # column header (x y) under the title line
+                continue  # column header (x y) under the title line (read above when it can)
             bad = next(t for t, v in zip(tokens, values) if v is None)
+            if ";" in content:
+                raise InputError(f"{path}: line {number}: {content!r}: values separated by "
+                                 "semicolons must be numbers, with a decimal point or a "
+                                 f"decimal comma; {bad!r} is neither")
             where = "after the body's title line" if current and not current.rows else "here"
             raise InputError(f"{path}: line {number}: {bad!r} is not a number (a title line is "
                              f"only allowed at the start of the file or after a blank line, "
                              f"not {where})")
         if len(values) != 2:
+            if len(values) == 4 and content.count(",") >= 2 and ";" not in content:
+                raise InputError(f"{path}: line {number}: {content!r} reads as 4 numbers: with "
+                                 "decimal commas, separate the two values by a semicolon or "
+                                 "blanks (0,25;0,031), not by another comma")
             raise InputError(f"{path}: line {number}: expected 2 values (x y), found "
                              f"{len(values)}")
         if not all(math.isfinite(v) for v in values):
@@ -184,6 +284,87 @@ def _parse_table(text: str, path: Path) -> list[_Body]:
         current.add(values[0], values[1], number, after_blank)
         after_blank = False
     return bodies
+
+
+def _fields(content: str, delimiter: str | None = None) -> list:
+    """Fields of a named-column row: split at ``delimiter`` (CSV quoting honoured), else at
+    blanks."""
+    if delimiter is None:
+        return content.split()
+    import csv
+
+    return [f.strip() for f in next(csv.reader([content], delimiter=delimiter))]
+
+
+def _delimiter(header: str) -> str | None:
+    for d in (",", ";", "\t"):
+        if d in header:
+            return d
+    return None
+
+
+def _named_column(field: str):
+    """(base name, unit or None) of a header field such as ``x_mm`` or ``y [in]``."""
+    words = re.sub(r"[()\[\]_]", " ", field.lower()).split()
+    if not words:
+        return "", None
+    return words[0], (" ".join(words[1:]) or None)
+
+
+def _parse_named(text: str, path: Path) -> list[_Body] | None:
+    """Bodies of a table whose header names more than two columns (panelflow's own layout),
+    or None when the file is not such a table."""
+    lines = text.splitlines()
+    first = next(((n, ln.split("#", 1)[0].strip()) for n, ln in enumerate(lines, start=1)
+                  if ln.split("#", 1)[0].strip()), None)
+    if first is None:
+        return None
+    number, header = first
+    if _header_unit(header, path, number)[0]:
+        return None  # a header of x and y alone (with their unit): the plain layouts
+    delimiter = _delimiter(header)
+    names = [_named_column(f) for f in _fields(header, delimiter)]
+    bases = [b for b, _ in names]
+    if len(names) < 3 or not ({"x", "x/c"} & set(bases) and {"y", "y/c"} & set(bases)):
+        return None
+    ix = next(i for i, b in enumerate(bases) if b in ("x", "x/c"))
+    iy = next(i for i, b in enumerate(bases) if b in ("y", "y/c"))
+    units = set()
+    for i in (ix, iy):
+        if names[i][1] is not None:
+            unit = UNIT_WORDS.get(names[i][1])
+            if unit is None:
+                raise InputError(f"{path}: line {number}: the header {header!r} names the unit "
+                                 f"{names[i][1]!r}, which panelflow does not know; use m, cm, "
+                                 "mm, in or ft")
+            units.add(unit)
+    if len(units) > 1:
+        raise InputError(f"{path}: line {number}: the x and y columns are in different units "
+                         f"({', '.join(sorted(units))})")
+    unit = units.pop() if units else None
+    ib = bases.index("body") if "body" in bases else None
+    bodies: dict = {}
+    for n, raw in enumerate(lines[number:], start=number + 1):
+        content = raw.split("#", 1)[0].strip()
+        if not content:
+            continue
+        fields = _fields(content, delimiter)
+        if delimiter == ";":
+            fields = [f.replace(",", ".") if _DECIMAL_COMMA.fullmatch(f) else f for f in fields]
+        if len(fields) != len(names):
+            raise InputError(f"{path}: line {n}: {len(fields)} values, but the header (line "
+                             f"{number}) names {len(names)} columns")
+        x, y = _as_number(fields[ix]), _as_number(fields[iy])
+        if x is None or y is None or not (math.isfinite(x) and math.isfinite(y)):
+            bad = fields[ix] if x is None or not math.isfinite(x) else fields[iy]
+            raise InputError(f"{path}: line {n}: {bad!r} is not a finite number (columns "
+                             f"{header!r})")
+        key = fields[ib] if ib is not None else ""
+        if key not in bodies:
+            bodies[key] = _Body(key or None, n)
+            bodies[key].unit = unit
+        bodies[key].add(x, y, n, False)
+    return list(bodies.values())
 
 
 def _title(content: str) -> str | None:
@@ -280,7 +461,7 @@ def _names(bodies: list[_Body], stem: str) -> list[str]:
 
 
 def _outline(points: np.ndarray, name: str, path: Path, where: str,
-             starts_at_te: bool = True, lines=None) -> Outline:
+             starts_at_te: bool = True, lines=None, unit: str | None = None) -> Outline:
     if len(points) > MAX_OUTLINE_POINTS:
         raise InputError(f"{path}: {where}{len(points)} points; at most {MAX_OUTLINE_POINTS} per "
                          "body (a section needs a few hundred, and the panels are placed on a "
@@ -293,7 +474,7 @@ def _outline(points: np.ndarray, name: str, path: Path, where: str,
                          "length unit; check the file")
     try:
         return Outline.from_points(points, name=name, source=str(path),
-                                   starts_at_trailing_edge=starts_at_te, lines=lines)
+                                   starts_at_trailing_edge=starts_at_te, lines=lines, unit=unit)
     except GeometryError as exc:
         msg = str(exc)
         if msg.startswith(str(path) + ": "):
@@ -324,7 +505,10 @@ def read_outline_table(path) -> list[Outline]:
         the path.
     """
     p = Path(path)
-    bodies = _parse_table(_read_text(p), p)
+    text = _read_text(p)
+    bodies = _parse_named(text, p)
+    if bodies is None:
+        bodies = _parse_table(text, p)
     if not bodies or not any(b.rows for b in bodies):
         raise InputError(f"{p}: no points found (expected lines of x y)")
     for body in bodies:
@@ -336,7 +520,7 @@ def read_outline_table(path) -> list[Outline]:
     for b, n in zip(bodies, names):
         rows = _body_points(b, p)
         out.append(_outline(rows[:, :2], n, p, f"body {n!r} (from line {b.line}): " if many
-                            else "", lines=rows[:, 2].astype(np.int64)))
+                            else "", lines=rows[:, 2].astype(np.int64), unit=b.unit))
     return out
 
 
@@ -522,14 +706,38 @@ def _number_like(text: str) -> bool:
     return bool(tokens) and all(_as_number(t) is not None for t in tokens)
 
 
-def write_outline_table(outline: Outline, path, overwrite: bool = False) -> Path:
-    """Write an outline as a layout-(a) coordinate table, atomically.
+def outline_table_text(outlines) -> str:
+    """panelflow's own coordinate layout (see the module docstring): one header row
+    ``body,point,x,y`` (``x_mm,y_mm`` and the like when the outlines carry a unit), then one
+    point per row, numbered along each outline from its first point."""
+    import csv
+
+    outlines = [outlines] if isinstance(outlines, Outline) else list(outlines)
+    units = {o.unit for o in outlines}
+    unit = units.pop() if len(units) == 1 else None
+    suffix = f"_{unit}" if unit else ""
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(["body", "point", f"x{suffix}", f"y{suffix}"])
+    for o in outlines:
+        name = " ".join(str(o.name).split()) or "body"
+        w.writerows([name, k, f"{x:.12g}", f"{y:.12g}"]
+                    for k, (x, y) in enumerate(o.points, start=1))
+    return buf.getvalue()
+
+
+def write_outline_table(outline, path, overwrite: bool = False) -> Path:
+    """Write one outline (or several) in panelflow's own coordinate layout, atomically.
+
+    The layout is the same whatever the extension (``.csv``, ``.dat``, ``.txt``): a header row
+    ``body,point,x,y``, then one point per row in panelflow's order (upper trailing edge, leading
+    edge, lower trailing edge), every body in one file. :func:`read_outline_table` reads it
+    back, and so does any spreadsheet.
 
     Parameters
     ----------
-    outline : Outline
-        The body to write; its points are written in panelflow's order (upper trailing edge,
-        leading edge, lower trailing edge).
+    outline : Outline or sequence of Outline
+        The body or bodies to write.
     path : str or os.PathLike
         Output file.
     overwrite : bool, optional
@@ -545,17 +753,4 @@ def write_outline_table(outline: Outline, path, overwrite: bool = False) -> Path
     OutputError
         The file exists (and ``overwrite`` is False), or the folder is missing or not writable.
     """
-    p = Path(path)
-    title = " ".join(str(outline.name).split()) or "body"
-    if _number_like(title):
-        title = f"section {title}"  # a title of numbers would read back as a point
-    te = outline.trailing_edge
-    lines = [
-        title,
-        "# panelflow outline table: one loop from the upper trailing edge over the leading",
-        "# edge to the lower trailing edge (x y per line)",
-        f"# source: {' '.join(str(outline.source).split()) or 'not recorded'}",
-        f"# points: {len(outline.points)}, trailing edge: {te.kind}, chord: {outline.chord:.10g}",
-    ]
-    lines += [f"{x: .12g} {y: .12g}" for x, y in outline.points]
-    return atomic_write_text(p, "\n".join(lines) + "\n", overwrite=overwrite)
+    return atomic_write_text(Path(path), outline_table_text(outline), overwrite=overwrite)

@@ -311,6 +311,63 @@ class NodeTransfer:
 
 
 @dataclass(frozen=True)
+class HingeMoment:
+    """The moment of a flap's loads about its hinge.
+
+    Attributes
+    ----------
+    kind : str
+        ``"plain"`` (the deflected part of the one body: its load nodes behind the line through
+        the hinge normal to the undeflected chord) or ``"slotted"`` (the whole flap body).
+    hinge_point : ndarray (2,)
+        The point the flap turned about, m.
+    moment : float
+        Nose-up moment about the hinge point (N m, or N m/m without a span): a positive value
+        turns the flap's trailing edge down, as a positive deflection does.
+    coefficient : float
+        ``moment / (q c_f^2 b)`` with the flap chord ``c_f`` (the undeflected chord behind the
+        hinge) and the span ``b`` (1 m without one): the hinge-moment coefficient as the trade
+        forms it, with the same sign.
+    flap_chord : float
+        ``c_f``, m.
+    normal_force : float
+        Sum of the flap's loads normal to the undeflected chord, positive towards the upper
+        side (N or N/m).
+    nodes : int
+        Load nodes counted as the flap's.
+    """
+
+    kind: str
+    hinge_point: np.ndarray
+    moment: float
+    coefficient: float
+    flap_chord: float
+    normal_force: float
+    nodes: int
+
+
+def _hinge_moment(flap, bodies, scale: float, q: float, span_factor: float):
+    """The :class:`HingeMoment` of a flapped section's loads (None without a flap)."""
+    if flap is None:
+        return None
+    le, te = (np.asarray(p, float) * scale for p in flap.chord_line)
+    e = (te - le) / np.hypot(*(te - le))
+    n = np.array([-e[1], e[0]])
+    hinge = np.asarray(flap.hinge_point, float) * scale
+    if flap.kind == "slotted":
+        part = bodies[1]
+        keep = np.ones(part.n_nodes, bool)
+    else:
+        part = bodies[0]
+        keep = (part.x - hinge[0]) * e[0] + (part.y - hinge[1]) * e[1] > 0.0
+    x, y, fx, fy = part.x[keep], part.y[keep], part.fx[keep], part.fy[keep]
+    moment = float(_nose_up(x, y, fx, fy, hinge[None, :])[0])
+    c_f = (1.0 - flap.hinge) * flap.reference_chord * scale
+    return HingeMoment(flap.kind, hinge, moment, moment / (q * c_f**2 * span_factor), c_f,
+                       float(np.sum(fx * n[0] + fy * n[1])), int(keep.sum()))
+
+
+@dataclass(frozen=True)
 class Loads:
     """Dimensional loads of every body at one angle of attack.
 
@@ -348,6 +405,8 @@ class Loads:
     analysis : dict
         The solved problem as plain data (:meth:`Problem.record` and the margins' settings of
         :func:`~panelflow.analysis.result.margin_record`): what the pressures were computed for.
+    hinge : HingeMoment or None
+        With a flap: the moment of the flap's loads about its hinge.
     """
 
     conditions: Conditions
@@ -372,6 +431,7 @@ class Loads:
     notes: tuple
     transfer: NodeTransfer | None = None
     analysis: dict = field(default_factory=dict, repr=False)
+    hinge: HingeMoment | None = None
 
     def __repr__(self) -> str:
         return (f"Loads(alpha={self.alpha_deg:g} deg, lift={self.lift:.6g} {self.force_unit}, "
@@ -737,15 +797,36 @@ def section_loads(result, conditions: Conditions, alpha_deg: float | None = None
             "drag's own size; use cd for performance and these loads for the structure")
     cav_caution, cav_note = _cavitation(float(np.nanmin(cp.node[i])), conditions, q,
                                         result.cavitation)
+    size = size_warning(chord, conditions.describe_scale(result.chord))
+    if size:
+        notes.append(size)
     loads = Loads(conditions, alpha, scale, chord, q, ref, about_m, bodies, lift, drag,
                   float(moments[0]), moments[1:], cl_c * fscale, cl_p, float(cp.cd[i]),
                   float(cp.cm[i]), cl_c, Equilibrium(checks), LOAD_CAUTIONS + cav_caution,
                   tuple(notes) + cav_note,
-                  analysis={**result.problem.record(), **margin_record(result)})
+                  analysis={**result.problem.record(), **margin_record(result)},
+                  hinge=_hinge_moment(result.flap, bodies, scale, q, conditions.span_factor))
     if nodes is not None:
         tol = None if node_tolerance is None else node_tolerance * scale
         loads = with_transfer(loads, transfer_to_nodes(loads, nodes, tol, moment_tolerance))
     return loads
+
+
+# Chords outside this range (metres) are unlikely for the sections panelflow serves, from a
+# model's fin to a turbine blade's root (common practice): a wrong length unit is more likely.
+PLAUSIBLE_CHORD_M = (0.005, 20.0)
+
+
+def size_warning(chord_m: float, scaling: str) -> str:
+    """A sentence when a chord of ``chord_m`` metres looks like a wrong length unit, else ""."""
+    lo, hi = PLAUSIBLE_CHORD_M
+    if lo <= chord_m <= hi:
+        return ""
+    guess = ("if the outline is in millimetres, give --unit mm (or a column header x_mm, y_mm)"
+             if chord_m > hi else "if the outline is not in metres, give its --unit, or the "
+             "chord in metres with --chord")
+    return (f"warning: the main chord is {chord_m:.6g} m ({scaling}), outside the "
+            f"{lo:g} to {hi:g} m usual for foil and fairing sections: {guess}")
 
 
 def _percent(a, b) -> str:
@@ -1023,7 +1104,8 @@ def equilibrium_text(loads: Loads) -> str:
                      f"{c.from_coefficients:>17.10g}  {unit:<5}  {c.relative:.1e}")
     lines.append(f"  {'within tolerance' if eq.ok else 'NOT WITHIN TOLERANCE'}: largest "
                  f"relative difference {eq.max_relative:.1e}")
-    lines += [f"  {note}" for note in loads.notes]
+    lines += hinge_lines(loads)
+    lines += [f"  {note}" for note in loads.notes if not note.startswith("warning: ")]
     lines += [f"caution: {text}" for text in loads.cautions[len(LOAD_CAUTIONS):]]
     t = loads.transfer
     if t is not None:
@@ -1037,6 +1119,19 @@ def equilibrium_text(loads: Loads) -> str:
                              f"from the outline, moment changed by {b.moment_difference:.3e} "
                              f"{mu} (relative {b.moment_relative:.1e})")
     return "\n".join(lines) + "\n"
+
+
+def hinge_lines(loads: Loads) -> list:
+    """The flap's hinge moment in words (empty without a flap)."""
+    h = loads.hinge
+    if h is None:
+        return []
+    part = "its deflected part" if h.kind == "plain" else "the flap body"
+    return [f"  flap hinge at ({h.hinge_point[0]:.6g}, {h.hinge_point[1]:.6g}) m, {part} "
+            f"({h.nodes} load nodes): hinge moment {h.moment:.6g} {loads.moment_unit} nose-up "
+            f"(positive turns the trailing edge down), coefficient {h.coefficient:.5f} per "
+            f"q c_f^2 (flap chord {h.flap_chord:.6g} m); normal force {h.normal_force:.6g} "
+            f"{loads.force_unit}"]
 
 
 def _check_name(c: Check) -> str:

@@ -10,7 +10,8 @@
     reader) imports h5py even for its ``data_format="XML"`` mode, and h5py is not a dependency.
     meshio reads the files back wherever h5py can be imported.
 ``.csv``
-    One row per field point, columns ``x,y,u,v,cp,inside``, under ``#`` comment lines.
+    One row per field point, columns ``x,y,u,v,cp,inside`` under one header row; the notes
+    (version, angle, layout, units, caution) go beside it into ``NAME.about.json``.
 
 Mesh layout (``.vtu`` and ``.xdmf``)
 ------------------------------------
@@ -107,7 +108,10 @@ def check_field_outputs(paths, overwrite: bool = False) -> None:
     The checks of :func:`panelflow.output.writers.check_outputs` against the field formats; call it
     before computing a field so a run that cannot finish writes nothing.
     """
-    check_outputs(paths, overwrite, registry=FIELD_WRITERS, what="flow-field")
+    from panelflow.output.columns import with_sidecar
+
+    check_outputs(paths, overwrite, registry=FIELD_WRITERS, what="flow-field",
+                  expand=with_sidecar)
 
 
 # ---------------------------------------------------------------------------------- the mesh
@@ -345,9 +349,9 @@ def _write_csv(field, outlines, k: int, path: Path, overwrite: bool) -> Path:
     Written in chunks of ``WRITE_CHUNK`` rows straight into the temporary file, so the memory
     needed does not grow with the number of points.
     """
+    from panelflow.output.columns import write_sidecar
+
     def write(fh):
-        for line in _header_lines(field, k):
-            fh.write(f"# {line}\n")
         csv.writer(fh, lineterminator="\n").writerow(FIELD_COLUMNS)
         for i in range(0, len(field.points), WRITE_CHUNK):
             sl = slice(i, i + WRITE_CHUNK)
@@ -356,7 +360,10 @@ def _write_csv(field, outlines, k: int, path: Path, overwrite: bool) -> Path:
             # 15 significant digits: read-back values agree to ~1e-15 relative
             np.savetxt(fh, table, fmt=["%.15g"] * 5 + ["%d"], delimiter=",")
 
-    return atomic_write(path, write, overwrite)
+    out = atomic_write(path, write, overwrite)
+    lines = _header_lines(field, k)
+    write_sidecar(path, FIELD_COLUMNS, lines[-1], lines[:-1], overwrite)
+    return out
 
 
 # ---------------------------------------------------------------------------------- points in

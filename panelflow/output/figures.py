@@ -10,11 +10,15 @@ being asked and an interrupted run leaves no half-written figure.
 matplotlib is imported inside the functions only, so importing panelflow (and starting the CLI)
 does not pay for it.
 
-Layout of the Cp figures (panelflow's own): the Cp axes on top with negative Cp upward (the
-trade's convention: suction up), the section(s) drawn true to scale beneath on the same x/c axis,
-a case card in a column on the right (case, angle of attack, panels, Cl and Cm with their error
-estimates, moment reference point, minimum Cp), and the caution line small along the bottom.
-Upper surfaces are solid lines, lower surfaces dashed, in the same colour.
+Layout of the Cp figures (panelflow's own): the title with a muted line beneath naming the case,
+panels and moment reference point; the legend in a row along the top of the Cp axes (curves on
+the left, the surface key on the right); the Cp axes across the page's width with negative Cp
+upward (the trade's convention: suction up); the section(s) true to scale beneath on the same x/c
+axis; under both a strip of numbers, one row per curve set with its colour swatch (angle, Cl and
+Cm with their error estimates, the lowest Cp over every body and where it sits, the margins); the
+caution line small along the bottom. Upper surfaces are solid lines, lower surfaces dashed, in the
+same colour. The polar figure follows the same plan: three axes across the width, the legend
+above, a strip of each section's numbers beneath.
 """
 
 from __future__ import annotations
@@ -46,12 +50,28 @@ INK = "#22262c"
 MUTED = "#6b7280"
 RULE = "#d5d9de"
 SECTION_FILL = "#e3e7eb"
-PALETTE = ("#1f4e79", "#b5562f", "#4f7f52", "#7a5c8e", "#a88a2c", "#3d8a99", "#8c4a5a")
+# Twelve hues, told apart by hue and lightness alike (a section beyond the twelfth in a polar
+# also changes its marker, see _marker).
+PALETTE = ("#1f4e79", "#b5562f", "#4f7f52", "#7a5c8e", "#a88a2c", "#3d8a99", "#8c4a5a",
+           "#5b6f2a", "#c06c9e", "#d48a1e", "#5d8fc4", "#7d5a3c")
+MARKERS = ("o", "s", "^", "D", "v")
+
+
+def _colour(j: int) -> str:
+    """The j-th curve colour (the palette repeats only after twelve)."""
+    return PALETTE[j % len(PALETTE)]
+
+
+def _marker(j: int) -> str:
+    """The j-th section's marker: a new one each time the palette comes round again."""
+    return MARKERS[(j // len(PALETTE)) % len(MARKERS)]
 # Cp field: deep blue for suction through a warm off-white at Cp = 0 to burnt orange at
 # stagnation (diverging about zero, so the sign of the pressure reads at a glance).
 FIELD_COLOURS = ("#0f2a47", "#2f5f8f", "#7fa9cf", "#cfe0ee", "#f5f2ea", "#f3d3a4", "#e09a4f",
                  "#b8571f", "#7a2e12")
 BODY_FILL = "#454b54"
+PLANE_FILL = "#eef1f4"  # the far side of a wall or free surface (no flow there)
+PLANE_LINE = "#1b3a5c"
 STREAM = "#15181c"
 
 FONT = {"title": 11.0, "label": 9.5, "tick": 8.5, "card": 8.2, "legend": 8.2, "note": 6.6}
@@ -62,14 +82,12 @@ _LOWER_DASH = (0, (4.0, 2.0))
 _W = 9.7
 _LEFT, _RIGHT = 0.95, 0.12
 _YLABEL_X = 0.78  # y-axis labels this far left of the axes, so Cp and y/c line up
-_CARD_W, _GAP = 2.55, 0.35
 _TITLE_H = 0.5
 _CP_H = 3.6
 _SEC_GAP = 0.1
 _SEC_MIN_H = 0.55
 _XLABEL_H = 0.5
 _NOTE_LINE_H = 0.13
-_CARD_LINE_H = 0.185
 
 
 # ------------------------------------------------------------------------------- file output
@@ -235,21 +253,95 @@ def _wrap_card(text: str, chars: int = 36) -> list:
     return textwrap.wrap(text, chars) or [""]
 
 
-def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
+def _text_width_in(text: str, size: float) -> float:
+    # DejaVu Sans averages about 0.55 em per character (0.6 for the digits and signs)
+    return max((len(part) for part in str(text).split("\n")), default=0) * 0.58 * size / 72.0
+
+
+@dataclass(frozen=True)
+class _Table:
+    """The results strip of a Cp figure: one row per drawn curve set, a colour swatch first.
+
+    Attributes
+    ----------
+    headers : tuple of str
+        Column headers (a ``\\n`` splits one over two lines).
+    rows : tuple of (colour, tuple of str)
+        A colour of ``None`` draws no swatch.
+    """
+
+    headers: tuple
+    rows: tuple
+
+
+_ROW_H = 0.19  # inches per table row
+_HEAD_H = 0.36  # two header lines
+_COL_GAP = 0.22
+
+
+def _table_layout(table: _Table, width_in: float):
+    """(column widths in inches, font size) that fit the table into ``width_in``."""
+    size = FONT["card"]
+    for _ in range(6):
+        widths = [max([_text_width_in(h, size)] + [_text_width_in(r[1][k], size)
+                                                    for r in table.rows]) + _COL_GAP
+                  for k, h in enumerate(table.headers)]
+        if sum(widths) + 0.3 <= width_in:
+            break
+        size *= 0.9
+    return widths, size
+
+
+def _draw_table(fig, table: _Table, left_in: float, top_in: float, width_in: float, W: float,
+                H: float) -> None:
+    """Draw the results strip with its top at ``top_in`` inches from the bottom."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Rectangle
+
+    widths, size = _table_layout(table, width_in)
+    x = left_in + 0.3  # after the swatch
+    y_head = top_in
+    for k, head in enumerate(table.headers):
+        fig.text((x + widths[k] - _COL_GAP) / W, y_head / H, head, fontsize=size, color=MUTED,
+                 va="top", ha="right", linespacing=1.2)
+        x += widths[k]
+    y = top_in - _HEAD_H
+    fig.add_artist(Line2D([left_in / W, min(x, left_in + width_in) / W], [y / H, y / H],
+                          color=RULE, linewidth=0.7, transform=fig.transFigure))
+    y -= 0.06
+    for colour, cells in table.rows:
+        if colour is not None:
+            fig.add_artist(Rectangle((left_in / W, (y - 0.1) / H), 0.2 / W, 0.08 / H,
+                                     facecolor=colour, edgecolor="none",
+                                     transform=fig.transFigure))
+        x = left_in + 0.3
+        for k, cell in enumerate(cells):
+            fig.text((x + widths[k] - _COL_GAP) / W, y / H, cell, fontsize=size, color=INK,
+                     va="top", ha="right")
+            x += widths[k]
+        y -= _ROW_H
+
+
+def _cp_figure(traces, shapes, table, title, subtitle="", legend_labels=(), legend_title=None,
                reference=None, levels=()):
-    """Lay out a Cp figure: Cp axes (negative up), true-scale sections beneath, card, note.
+    """Lay out a Cp figure: title and what was solved, the Cp axes (negative up) with the
+    legend along their top, the sections true to scale beneath, the results strip, the caution.
+
+    panelflow's own composition: the numbers sit in a strip under the plot, one row per
+    curve set with its colour, so the plot keeps the page's full width.
 
     Parameters
     ----------
     traces : list of _Trace
     shapes : list of _Shape
-    card : list of tuples
-        ``("head", text, colour)``, ``("text", text)``, ``("row", key, value)``, ``("gap",)``.
+    table : _Table
     title : str
+    subtitle : str
+        One muted line under the title (case, panels, moment reference, conditions).
     legend_labels : sequence of (label, colour)
-        Legend entries of the Cp axes (solid line samples), set at the head of the card column
-        so that no entry hides a curve.
+        Legend entries (solid line samples), in a row along the top of the Cp axes.
     legend_title : str, optional
+        Not drawn (the title names what the legend's entries are); kept for callers.
     reference : (x/c, y/c), optional
         Moment reference point, marked on the section.
     levels : sequence of (Cp, label)
@@ -261,6 +353,8 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
     from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
+    if not isinstance(table, _Table):  # card entries, as the design figures give them
+        table = _table_from_card(table)
     # x range over curves and sections; section height from the true aspect ratio
     s_all = np.concatenate([t.s_upper for t in traces] + [t.s_lower for t in traces]
                            + [sh.s for sh in shapes])
@@ -272,25 +366,29 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
     n_pad = 0.12 * max(n1 - n0, 0.02 * (x1 - x0))
     n0, n1 = n0 - n_pad, n1 + n_pad
 
-    plot_w = _W - _LEFT - _RIGHT - _CARD_W - _GAP
+    plot_w = _W - _LEFT - _RIGHT
     sec_h = max(_SEC_MIN_H, plot_w * (n1 - n0) / (x1 - x0))
     note = _note_lines(CAUTION, _W - _LEFT - _RIGHT, FONT["note"])
     note_h = 0.12 + _NOTE_LINE_H * len(note)
-    n_legend = len(legend_labels) + (legend_title is not None) + 3  # + surface key and gap
-    card_h = _CARD_LINE_H * (len(card) + n_legend) + 0.1
-    body_h = max(_CP_H + _SEC_GAP + sec_h, card_h)
-    cp_h = body_h - _SEC_GAP - sec_h
-    H = _TITLE_H + body_h + _XLABEL_H + note_h
+    sub = (textwrap.wrap(subtitle, int((_W - _LEFT - _RIGHT) * 72.0 / (0.52 * FONT["card"])),
+                         break_on_hyphens=False) if subtitle else [])
+    sub_h = 0.19 * len(sub)
+    n_cols = max(1, min(len(legend_labels), 4))
+    legend_rows = max(1, -(-len(legend_labels) // n_cols))
+    legend_h = 0.2 * legend_rows + 0.12
+    table_h = _HEAD_H + 0.1 + _ROW_H * len(table.rows) + 0.15
+    H = _TITLE_H + sub_h + legend_h + _CP_H + _SEC_GAP + sec_h + _XLABEL_H + table_h + note_h
 
     fig = Figure(figsize=(_W, H))
-    renderer = FigureCanvasAgg(fig).get_renderer()
+    FigureCanvasAgg(fig)
 
     def rect(left, bottom, width, height):
         return [left / _W, bottom / H, width / _W, height / H]
 
-    y_sec = note_h + _XLABEL_H
+    y_table_top = note_h + table_h
+    y_sec = y_table_top + _XLABEL_H
     y_cp = y_sec + sec_h + _SEC_GAP
-    ax_cp = fig.add_axes(rect(_LEFT, y_cp, plot_w, cp_h))
+    ax_cp = fig.add_axes(rect(_LEFT, y_cp, plot_w, _CP_H))
     ax_sec = fig.add_axes(rect(_LEFT, y_sec, plot_w, sec_h), sharex=ax_cp)
 
     # --- Cp curves
@@ -319,6 +417,28 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
     ax_cp.tick_params(labelbottom=False)
     ax_cp.yaxis.set_major_locator(MaxNLocator(nbins=8, steps=[1, 2, 2.5, 5, 10]))
 
+    # legend in a row along the top of the Cp axes: the curves' colours on the left, the
+    # surface key on the right
+    lift = 1.0 + 0.06 / _CP_H
+    if legend_labels:
+        handles = [Line2D([], [], color=c, linewidth=LINE["upper"]) for _, c in legend_labels]
+        leg = ax_cp.legend(handles, [lab for lab, _ in legend_labels], loc="lower left",
+                           bbox_to_anchor=(0.0, lift), ncol=n_cols, fontsize=FONT["legend"],
+                           frameon=False, borderpad=0.0, borderaxespad=0.0, handlelength=2.3,
+                           handletextpad=0.5, columnspacing=1.4, labelspacing=0.35)
+        for text in leg.get_texts():
+            text.set_color(INK)
+    key = fig.legend([Line2D([], [], color=MUTED, linewidth=LINE["upper"]),
+                      Line2D([], [], color=MUTED, linewidth=LINE["lower"],
+                             linestyle=_LOWER_DASH)], ["upper surface", "lower surface"],
+                     loc="lower right", bbox_to_anchor=((_LEFT + plot_w) / _W,
+                                                        (y_cp + _CP_H + 0.06) / H),
+                     ncol=2, fontsize=FONT["legend"], frameon=False, borderpad=0.0,
+                     borderaxespad=0.0, handlelength=2.3, handletextpad=0.5,
+                     columnspacing=1.4)
+    for text in key.get_texts():
+        text.set_color(MUTED)
+
     # --- sections, true to scale
     _style_axes(ax_sec)
     ax_sec.grid(False)
@@ -338,54 +458,16 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
                       va="center")
     ax_sec.yaxis.set_label_coords(-_YLABEL_X / plot_w, 0.5)
 
+    y_top = H - 0.22
     if title:
-        fig.text(_LEFT / _W, 1.0 - 0.22 / H, title, fontsize=FONT["title"], color=INK,
+        fig.text(_LEFT / _W, y_top / H, title, fontsize=FONT["title"], color=INK,
                  weight="bold", va="center", ha="left")
+    if sub:
+        fig.text(_LEFT / _W, (y_top - 0.2) / H, "\n".join(sub), fontsize=FONT["card"],
+                 color=MUTED, va="top", ha="left", linespacing=1.5)
 
-    # --- card column, top-aligned with the Cp axes: legend, surface key, then the numbers
-    x_card = (_W - _RIGHT - _CARD_W) / _W
-    x_val = x_card + 0.95 / _W
-    step = _CARD_LINE_H / H
-    y = (y_cp + cp_h) / H
-    if legend_labels:
-        handles = [Line2D([], [], color=c, linewidth=LINE["upper"]) for _, c in legend_labels]
-        leg = ax_cp.legend(handles, [lab for lab, _ in legend_labels], loc="upper left",
-                           bbox_to_anchor=(x_card, y), bbox_transform=fig.transFigure,
-                           fontsize=FONT["legend"], title=legend_title,
-                           title_fontsize=FONT["legend"], alignment="left", frameon=False,
-                           borderpad=0.0, borderaxespad=0.0, handlelength=2.3,
-                           handletextpad=0.6, labelspacing=0.45)
-        for text in leg.get_texts():
-            text.set_color(INK)
-        if legend_title is not None:
-            leg.get_title().set_color(MUTED)
-        # place what follows under the legend as drawn
-        y -= leg.get_window_extent(renderer).height / fig.dpi / H + 0.5 * step
-    for dash, width, label in ((None, LINE["upper"], "upper surface"),
-                               (_LOWER_DASH, LINE["lower"], "lower surface")):
-        yy = y - 0.5 * step
-        fig.add_artist(Line2D([x_card, x_card + 0.32 / _W], [yy, yy], color=MUTED,
-                              linewidth=width, linestyle=dash or "-",
-                              transform=fig.transFigure))
-        fig.text(x_card + 0.42 / _W, yy, label, fontsize=FONT["card"], color=MUTED,
-                 va="center", ha="left")
-        y -= step
-    y -= 0.6 * step
-    fig.add_artist(Line2D([x_card, x_card + (_CARD_W - 0.1) / _W], [y, y], color=RULE,
-                          linewidth=0.6, transform=fig.transFigure))
-    y -= 0.5 * step
-    for entry in card:
-        kind = entry[0]
-        if kind == "head":
-            fig.text(x_card, y, entry[1], fontsize=FONT["card"], color=entry[2] or INK,
-                     weight="bold", va="top", ha="left")
-        elif kind == "row":
-            fig.text(x_card, y, entry[1], fontsize=FONT["card"], color=MUTED, va="top",
-                     ha="left")
-            fig.text(x_val, y, entry[2], fontsize=FONT["card"], color=INK, va="top", ha="left")
-        elif kind == "text":
-            fig.text(x_card, y, entry[1], fontsize=FONT["card"], color=INK, va="top", ha="left")
-        y -= step
+    # --- the results strip under the plot, one row per curve set
+    _draw_table(fig, table, _LEFT - 0.3, y_table_top - 0.05, _W - _LEFT - _RIGHT + 0.3, _W, H)
 
     # --- caution, small along the bottom
     fig.text(_LEFT / _W, (0.08 + _NOTE_LINE_H * (len(note) - 0.5)) / H, "\n".join(note),
@@ -393,62 +475,56 @@ def _cp_figure(traces, shapes, card, title, legend_labels=(), legend_title=None,
     return fig
 
 
-def _reference_rows(analysis) -> list:
+def _reference_text(analysis) -> str:
     """Moment reference point as a chord position and in input coordinates."""
     ref = analysis.reference_point
     s_ref, n_ref = _chord_frame(analysis.fine.chord_line, ref[0], ref[1])
-    chordwise = f"x/c {_fixed(float(s_ref), 3)}, y/c {_fixed(float(n_ref), 3)}"
-    return [("row", "moments about", chordwise),
-            ("row", "", f"x, y = {_xy(ref, analysis.chord)}")]
+    return (f"moments about x/c {_fixed(float(s_ref), 3)}, y/c {_fixed(float(n_ref), 3)} "
+            f"(x, y = {_xy(ref, analysis.chord)}), nose-up positive")
 
 
-def _case_rows(analysis, indices) -> list:
-    """Card rows of one analysis at the given angles."""
-    rows = [("row", "panels", _panels(analysis))] + _reference_rows(analysis)
-    n_bodies = len(analysis.outlines)
-    for i in indices:
-        r = analysis[i]
-        rows.append(("gap",))
-        rows.append(("row", "angle of attack", _angle(r.alpha_deg)))
-        rows.append(("row", "Cl", _pm(r.cl, r.cl_error_estimate)))
-        rows.append(("row", "Cm", _pm(r.cm, r.cm_error_estimate)))
-        for k, b in enumerate(r.bodies):
-            label = "Cp min" if n_bodies == 1 else f"Cp min ({k + 1})"
-            rows.append(("row", label, f"{_fixed(b.cp_min, 3)} at x/c {_fixed(b.x_cp_min, 3)}"))
-            if np.isfinite(b.cp_base):  # blunt trailing edge
-                label = "Cp base" if n_bodies == 1 else f"Cp base ({k + 1})"
-                rows.append(("row", label, _fixed(b.cp_base, 3)))
-    return rows
+def _peak_cells(analysis, i, several_bodies: bool) -> list:
+    """Lowest Cp over every body at angle ``i``, where it sits, and (several bodies) on which."""
+    from panelflow.output.writers import suction_peak
+
+    cp, at, k = suction_peak(analysis)
+    cells = [_fixed(float(cp[i]), 3), _fixed(float(at[i]), 3)]
+    if several_bodies:
+        cells.append(analysis.outlines[int(k[i])].name)
+    return cells
+
+
+def _base_cell(r) -> str | None:
+    b = r.bodies[0]
+    return _fixed(b.cp_base, 3) if np.isfinite(b.cp_base) else None
 
 
 def _margins(result, indices):
-    """Reference levels and card rows of the margins a result carries, at the drawn angles."""
-    levels, rows = [], []
+    """Reference levels, subtitle phrases, and (header, cells per angle) of the margins."""
+    levels, phrases, columns = [], [], []
     c = getattr(result, "compressibility", None)
     if c is not None:
         if np.isfinite(c.cp_star):
             levels.append((float(c.cp_star), f"Cp* at Mach {c.mach:g}"))
-        rows += [("gap",), ("row", "Mach number", f"{c.mach:g} ({c.rule})")]
-        for i in indices:
-            rows.append(("row", f"Cl at Mach {c.mach:g}",
-                         _pm(float(c.cl[i]), float(c.cl_error_estimate[i]))))
-            rows.append(("row", "critical Mach", _fixed(float(c.critical_mach[i]), 3)))
+        phrases.append(f"Mach {c.mach:g} ({c.rule})")
+        columns.append((f"lift coefficient\nat Mach {c.mach:g}",
+                        [_pm(float(c.cl[i]), float(c.cl_error_estimate[i])) for i in indices]))
+        columns.append(("critical\nMach number",
+                        [_fixed(float(c.critical_mach[i]), 3) for i in indices]))
     v = getattr(result, "cavitation", None)
     if v is not None:
-        rows += [("gap",), ("row", "depth", f"{v.depth:g} m")]
+        phrases.append(f"{v.depth:g} m deep")
         if np.isfinite(v.sigma):
             levels.append((-float(v.sigma), f"minus the cavitation number ({v.sigma:.3g} at "
                                             f"{v.speed:g} m/s)"))
-        for i in indices:
-            rows.append(("row", "inception speed",
-                         f"{float(v.section_inception_speed[i]):.3g} m/s"))
+        columns.append(("cavitation inception\nspeed [m/s]",
+                        [f"{float(v.section_inception_speed[i]):.3g}" for i in indices]))
     p = getattr(result, "plane", None)
     if p is not None:
-        rows += [("gap",), ("row", p.boundary.label,
-                            f"{p.boundary.distance:g} from the pitch point")]
-        for i in indices:
-            rows.append(("row", "Cl in free space", _fixed(float(p.cl_free[i]), 4)))
-    return levels, rows
+        phrases.append(f"{p.boundary.label} {p.boundary.distance:g} from the pitch point")
+        columns.append(("lift coefficient\nin free space",
+                        [_fixed(float(p.cl_free[i]), 4) for i in indices]))
+    return levels, phrases, columns
 
 
 def _build_surface_cp_figure(analysis, alpha_deg=None, title=None):
@@ -468,34 +544,65 @@ def _build_surface_cp_figure(analysis, alpha_deg=None, title=None):
         r = analysis[i]
         for k, b in enumerate(r.bodies):
             # colour tells the angles apart when several are drawn, else the bodies
-            colour = PALETTE[(j if several else k) % len(PALETTE)]
+            colour = _colour(j if several else k)
             traces.append(_trace(line, b, b.name, colour))
         if several:
-            legend.append((_angle(r.alpha_deg), PALETTE[j % len(PALETTE)]))
+            legend.append((_angle(r.alpha_deg), _colour(j)))
     if not several and len(names) > 1:
-        legend = [(f"({k + 1}) {n}", PALETTE[k % len(PALETTE)]) for k, n in enumerate(names)]
-    card = []
-    if several or len(names) == 1:
-        card.append(("head", "case", None))
-        for k, n in enumerate(names):
-            label = n if len(names) == 1 else f"({k + 1}) {n}"
-            card += [("text", text) for text in _wrap_card(label)]
-        card.append(("gap",))
-    card += _case_rows(analysis, indices)
+        legend = [(n, _colour(k)) for k, n in enumerate(names)]
+    several_bodies = len(names) > 1
+    levels, phrases, margin_columns = _margins(analysis, indices)
+    headers = ["angle of\nattack", "lift coefficient\nCl", "moment coefficient\nCm",
+               "lowest\nCp", "at\nx/c"] + (["on\nbody"] if several_bodies else [])
+    bases = [_base_cell(analysis[i]) for i in indices]
+    if any(b is not None for b in bases):
+        headers.append("base Cp\n(blunt edge)")
+    headers += [h for h, _ in margin_columns]
+    rows = []
+    for j, i in enumerate(indices):
+        r = analysis[i]
+        cells = [_angle(r.alpha_deg), _pm(r.cl, r.cl_error_estimate),
+                 _pm(r.cm, r.cm_error_estimate), *_peak_cells(analysis, i, several_bodies)]
+        if any(b is not None for b in bases):
+            cells.append(bases[j] or "")
+        cells += [col[j] for _, col in margin_columns]
+        rows.append((_colour(j) if several else None, tuple(cells)))
     if title is None:
         angles = ", ".join(_angle(analysis.alpha_deg[i]) for i in indices)
         title = f"Surface pressure, angle of attack {angles}"
+    subtitle = "; ".join([", ".join(names), f"{_panels(analysis)} panels",
+                          _reference_text(analysis), *phrases])
     ref = analysis.reference_point
     s_ref, n_ref = _chord_frame(line, ref[0], ref[1])
-    levels, margin_rows = _margins(analysis, indices)
-    card += margin_rows
     # outlines in the body colours when colour tells the bodies apart
-    edges = ([PALETTE[k % len(PALETTE)] for k in range(len(names))]
-             if not several and len(names) > 1 else [INK] * len(names))
-    return _cp_figure(traces, _shapes(analysis, edges, SECTION_FILL), card, title,
+    edges = ([_colour(k) for k in range(len(names))]
+             if not several and several_bodies else [INK] * len(names))
+    return _cp_figure(traces, _shapes(analysis, edges, SECTION_FILL),
+                      _Table(tuple(headers), tuple(rows)), title, subtitle,
                       legend_labels=legend,
-                      legend_title="angle of attack" if several else "bodies" if legend else None,
+                      legend_title="angle of attack" if several else None,
                       reference=(float(s_ref), float(n_ref)), levels=levels)
+
+
+def _table_from_card(card) -> _Table:
+    """A results strip from card entries (``("head", label, colour)`` then ``("row", key,
+    value)`` ...): one row per head, a column per key in the order they first appear."""
+    groups, keys = [], []
+    for entry in card:
+        if entry[0] == "head":
+            if groups and groups[-1][1] is not None and not groups[-1][2]:
+                groups[-1] = (groups[-1][0] + " " + entry[1], groups[-1][1], {})  # wrapped
+                continue
+            groups.append((entry[1], entry[2], {}))
+        elif entry[0] == "row" and groups:
+            key = entry[1] or "(continued)"
+            if key not in keys:
+                keys.append(key)
+            groups[-1][2][key] = entry[2]
+    headers = ("case", *keys)
+    rows = tuple((colour, (label, *(values.get(k, "") for k in keys)))
+                 for label, colour, values in groups)
+    return _Table(headers, rows)
 
 
 def surface_cp_figure(analysis, path, alpha_deg=None, *, overwrite: bool = False,
@@ -503,9 +610,10 @@ def surface_cp_figure(analysis, path, alpha_deg=None, *, overwrite: bool = False
     """Write the surface Cp of one analysis against x/c, negative Cp upward.
 
     Every body is drawn (upper surface solid, lower surface dashed); the sections are drawn to
-    scale beneath on the same x/c axis (the main body's chord line); a case card gives the body
-    names, angle of attack, panels, Cl and Cm with their error estimates, the moment reference
-    point and the minimum Cp; the caution line runs along the bottom.
+    scale beneath on the same x/c axis (the main body's chord line); a line under the title names
+    the bodies, panels and moment reference point, and a strip beneath the plot gives per angle
+    Cl and Cm with their error estimates and the lowest Cp over every body with its position
+    (and body); the caution line runs along the bottom.
 
     Parameters
     ----------
@@ -550,9 +658,10 @@ def _build_compare_cp_figure(analyses, labels, alpha_deg=None, title=None):
         raise InputError("no analysis to compare")
     if len(labels) != len(analyses):
         raise InputError(f"{len(labels)} labels for {len(analyses)} analyses; give one each")
-    traces, shapes, legend, card, angles = [], [], [], [], []
+    traces, shapes, legend, rows, angles = [], [], [], [], []
+    several_bodies = any(len(a.outlines) > 1 for a in analyses)
     for j, (a, lab) in enumerate(zip(analyses, labels, strict=True)):
-        colour = PALETTE[j % len(PALETTE)]
+        colour = _colour(j)
         i = 0 if alpha_deg is None else _angle_index(a, alpha_deg)
         r = a[i]
         angles.append(r.alpha_deg)
@@ -561,22 +670,23 @@ def _build_compare_cp_figure(analyses, labels, alpha_deg=None, title=None):
         # outlines only: overlaid fills would muddy each other
         shapes += _shapes(a, [colour] * len(a.outlines), None)
         legend.append((lab, colour))
-        if card:
-            card.append(("gap",))
-        card += [("head", text, colour) for text in _wrap_card(lab)]
-        card.append(("row", "angle of attack", _angle(r.alpha_deg)))
-        card.append(("row", "panels", _panels(a)))
-        card.append(("row", "Cl", _pm(r.cl, r.cl_error_estimate)))
-        card.append(("row", "Cm", _pm(r.cm, r.cm_error_estimate)))
-        card += _reference_rows(a)[:1]
-        main = r.bodies[0]
-        card.append(("row", "Cp min", f"{_fixed(main.cp_min, 3)} at x/c "
-                                       f"{_fixed(main.x_cp_min, 3)}"))
+        ref = a.reference_point
+        s_ref, n_ref = _chord_frame(line, ref[0], ref[1])
+        rows.append((colour, (lab, _angle(r.alpha_deg), _panels(a),
+                              _pm(r.cl, r.cl_error_estimate), _pm(r.cm, r.cm_error_estimate),
+                              f"x/c {_fixed(float(s_ref), 3)}, y/c {_fixed(float(n_ref), 3)}",
+                              *_peak_cells(a, i, several_bodies))))
+    headers = ("case", "angle of\nattack", "panels", "lift coefficient\nCl",
+               "moment coefficient\nCm", "moments\nabout", "lowest\nCp", "at\nx/c",
+               *(("on\nbody",) if several_bodies else ()))
     if title is None:
         same = np.allclose(angles, angles[0], rtol=0.0, atol=1e-9)
         title = ("Surface pressure compared, angle of attack " + _angle(angles[0]) if same
                  else "Surface pressure compared")
-    return _cp_figure(traces, shapes, card, title, legend_labels=legend)
+    subtitle = ("each case on its own main chord line (x/c from 0 at its leading edge to 1 at "
+                "its trailing edge); moments nose-up positive")
+    return _cp_figure(traces, shapes, _Table(headers, tuple(rows)), title, subtitle,
+                      legend_labels=legend)
 
 
 def compare_cp_figure(analyses, labels, alpha_deg, path, overwrite: bool = False,
@@ -660,9 +770,20 @@ def _field_levels(cp, levels):
         if n < 2:
             raise InputError(f"levels = {levels}: need at least 2")
         top = min(hi, 1.0)  # Cp cannot exceed 1 in steady potential flow
-        lev = MaxNLocator(nbins=n, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, top)
+        if lo < 0.0 < top:
+            # each side of Cp = 0 gets bands of its own, in proportion to its share of the
+            # range but never fewer than a third of them: a deep suction peak must not leave
+            # the pressure side (0 to 1) with one or two bands
+            share = -lo / (top - lo)
+            n_neg = int(np.clip(round(n * share), n // 3, n - n // 3))
+            neg = MaxNLocator(nbins=n_neg, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, 0.0)
+            pos = MaxNLocator(nbins=n - n_neg, steps=[1, 2, 2.5, 5, 10]).tick_values(0.0, top)
+            lev = np.r_[neg[neg <= 0.0], pos[(pos > 0.0) & (pos < top)], top]
+        else:
+            lev = MaxNLocator(nbins=n, steps=[1, 2, 2.5, 5, 10]).tick_values(lo, top)
+            lev = np.r_[lev[lev < top], top]
         lev = lev[(lev >= lo - 1e-12) | (np.arange(len(lev)) == 0)]
-        lev = np.unique(np.r_[lev[lev < top], top])
+        lev = np.unique(lev)
     else:
         lev = np.unique(np.asarray(levels, float))
         if len(lev) < 2 or not np.all(np.isfinite(lev)):
@@ -703,17 +824,19 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
     beyond = (np.zeros(shape, bool) if image is None
               else image.beyond(gx + 1j * gy).reshape(shape))
     lev, extend = _field_levels(cp[~beyond], levels)
-    if polys and (invalid & ~beyond).any():
-        # Fill masked points with their nearest outside value before contouring: the bands then
-        # run up to the body outline (drawn over them) instead of stopping a grid cell short.
+    hidden = invalid | beyond  # inside a body, or on the far side of the plane
+    if (polys and (invalid & ~beyond).any()) or beyond.any():
+        # Fill hidden points with their nearest value in the flow before contouring: the bands
+        # then run up to the body outline and the plane (both drawn over them) instead of
+        # stopping a grid cell short in a saw-tooth of blank cells.
         from scipy.ndimage import distance_transform_edt
 
-        idx = distance_transform_edt(invalid, return_distances=False, return_indices=True)
-        filled = cp[tuple(idx)]
-        cp = np.ma.masked_array(filled, beyond) if beyond.any() else filled
+        idx = distance_transform_edt(hidden, return_distances=False, return_indices=True)
+        cp = cp[tuple(idx)]
+        if not polys:  # no outline to cover the body's cells: keep them blank
+            cp = np.ma.masked_array(cp, invalid & ~beyond)
     else:
         cp = np.ma.masked_invalid(cp)
-
     x0, x1 = float(gx.min()), float(gx.max())
     y0, y1 = float(gy.min()), float(gy.max())
     ax_w = 6.6
@@ -733,8 +856,8 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
     else:
         norm = Normalize(vmin=lev[0], vmax=lev[-1])
     filled = ax.contourf(gx, gy, cp, levels=lev, cmap=cmap, norm=norm, extend=extend, zorder=1)
-    ax.contour(gx, gy, cp, levels=[0.0] if lev[0] < 0.0 < lev[-1] else [], colors=[MUTED],
-               linewidths=0.5, zorder=2)
+    # (no line at Cp = 0: the diverging colours already turn there, and an unlabelled line
+    # across the field reads as a streamline or a boundary)
 
     for pts in polys:
         ax.add_patch(Polygon(pts, closed=True, facecolor=BODY_FILL, edgecolor=INK,
@@ -745,10 +868,27 @@ def _build_field_figure(field, bodies, streamlines=(), levels=None, title=None, 
         a, b = image.line(span)
         out = -1j * image.direction * (1.0 if image.fluid_above else -1.0) * span
         band = np.array([a, b, b + out, a + out])
+        # the far side is no flow: pale and hatched, unlike the solid bodies and unlike any
+        # Cp colour, with the plane itself as a firm line that stays visible over it
         ax.add_patch(Polygon(np.column_stack([band.real, band.imag]), closed=True,
-                             facecolor=BODY_FILL, edgecolor="none", zorder=3))
-        ax.plot([a.real, b.real], [a.imag, b.imag], color=INK, linewidth=LINE["outline"],
+                             facecolor=PLANE_FILL, edgecolor=RULE, hatch="////",
+                             linewidth=0.0, zorder=3))
+        ax.plot([a.real, b.real], [a.imag, b.imag], color=PLANE_LINE, linewidth=1.6,
                 zorder=5)
+        boundary = getattr(plane, "boundary", plane)  # a PlaneEffect or a Boundary
+        label = getattr(boundary, "label", "plane")
+        # name the plane at the window's middle, on its far side
+        mid = complex(0.5 * (x0 + x1), 0.5 * (y0 + y1))
+        foot = image.point + image.direction * ((mid - image.point)
+                                                / image.direction).real
+        away = -1j * image.direction * (1.0 if image.fluid_above else -1.0)
+        ax.annotate(f"{label}: no flow beyond", xy=(foot.real, foot.imag),
+                    xytext=(6.0 * away.real, 6.0 * away.imag), textcoords="offset points",
+                    ha="center", va="bottom" if image.fluid_above is False else "top",
+                    rotation=float(np.degrees(np.angle(image.direction))),
+                    rotation_mode="anchor", fontsize=FONT["legend"], color=INK, zorder=6,
+                    bbox=dict(boxstyle="square,pad=0.15", facecolor=PLANE_FILL,
+                              edgecolor="none"))
     for line in streamlines:
         sx, sy = _stream_xy(line)
         ok = np.isfinite(sx) & np.isfinite(sy)
@@ -922,24 +1062,41 @@ def _build_polar_figure(items, labels=None, title=None):
         ``fig.axes[0:3]`` are the Cl, Cm and Cp-min axes (the last with y inverted: suction up),
         sharing the angle-of-attack axis; the legend is on the Cl axes.
     """
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
     from matplotlib.figure import Figure
     from matplotlib.lines import Line2D
     from matplotlib.ticker import MaxNLocator
 
     traces = _polar_traces(items, labels)
-    plot_w = _W - _LEFT - _RIGHT - _CARD_W - _GAP
+    plot_w = _W - _LEFT - _RIGHT
     note = _note_lines(CAUTION, _W - _LEFT - _RIGHT, FONT["note"])
     note_h = 0.12 + _NOTE_LINE_H * len(note)
     axes_h = 3 * _POLAR_AX_H + 2 * _POLAR_AX_GAP
-    card_lines = sum(5 + len(_wrap_card(t.label)) for t in traces) + len(traces) + 2
-    body_h = max(axes_h, _CARD_LINE_H * card_lines + 0.1)
-    H = _TITLE_H + body_h + _XLABEL_H + note_h
+    n_cols = max(1, min(len(traces), 4))
+    legend_h = 0.2 * -(-len(traces) // n_cols) + 0.12
+    # the results strip under the plot: one row per section
+    rows = []
+    for j, t in enumerate(traces):
+        a_zero, slope = _lift_fit(t.alpha, t.cl)
+        i_min = int(np.nanargmin(t.cp_min)) if np.isfinite(t.cp_min).any() else None
+        rows.append((_colour(j), (
+            t.label, t.panels or "not recorded",
+            f"{len(t.alpha)}, {_angle(t.alpha[0])} to {_angle(t.alpha[-1])}",
+            "not fitted" if not np.isfinite(a_zero) else _angle(a_zero),
+            "not fitted" if not np.isfinite(slope) else f"{slope:.4f}",
+            "undefined" if i_min is None else _fixed(t.cp_min[i_min], 3),
+            "" if i_min is None else _angle(t.alpha[i_min]))))
+    table = _Table(("section", "panels", "angles", "zero-lift\nangle", "lift slope\n[per rad]",
+                    "lowest Cp\n(every body)", "at angle\nof attack"), tuple(rows))
+    table_h = _HEAD_H + 0.1 + _ROW_H * len(rows) + 0.15
+    H = _TITLE_H + legend_h + axes_h + _XLABEL_H + table_h + note_h
     fig = Figure(figsize=(_W, H))
+    FigureCanvasAgg(fig)
 
     def rect(left, bottom, width, height):
         return [left / _W, bottom / H, width / _W, height / H]
 
-    top = note_h + _XLABEL_H + body_h
+    top = note_h + table_h + _XLABEL_H + axes_h
     axes = []
     for k in range(3):
         bottom = top - (k + 1) * _POLAR_AX_H - k * _POLAR_AX_GAP
@@ -950,16 +1107,21 @@ def _build_polar_figure(items, labels=None, title=None):
     ax_cl, ax_cm, ax_cp = axes
     many = max(len(t.alpha) for t in traces) > _POLAR_MARKERS_UP_TO
     for j, t in enumerate(traces):
-        colour = PALETTE[j % len(PALETTE)]
-        style = dict(color=colour, linewidth=LINE["upper"], solid_joinstyle="round", zorder=3,
-                     marker=None if many else "o", markersize=2.6, markeredgewidth=0)
+        # a colour and a marker of its own for each section (markers stay on with more
+        # sections than colours, so no two sections look alike)
+        marked = not many or j >= len(PALETTE)
+        style = dict(color=_colour(j), linewidth=LINE["upper"], solid_joinstyle="round",
+                     zorder=3, marker=_marker(j) if marked else None,
+                     markersize=2.8 if j < len(PALETTE) else 3.6, markeredgewidth=0,
+                     markevery=max(1, len(t.alpha) // 15) if many else 1)
         ax_cl.plot(t.alpha, t.cl, **style)
         ax_cm.plot(t.alpha, t.cm, **style)
         ax_cp.plot(t.alpha, t.cp_min, **style)
-    for ax, name in ((ax_cl, "Cl"), (ax_cm, "Cm"), (ax_cp, "Cp min")):
+    for ax, name in ((ax_cl, "Cl"), (ax_cm, "Cm"), (ax_cp, "lowest Cp")):
         ax.axhline(0.0, color=MUTED, linewidth=0.7, zorder=1)
         ax.axvline(0.0, color=RULE, linewidth=0.8, zorder=1)
-        ax.set_ylabel(name, fontsize=FONT["label"], color=INK, rotation=0, ha="left",
+        # upright labels along the axes' left edge: clear of tick labels of any width
+        ax.set_ylabel(name, fontsize=FONT["label"], color=INK, rotation=90, ha="center",
                       va="center")
         ax.yaxis.set_label_coords(-_YLABEL_X / plot_w, 0.5)
         ax.yaxis.set_major_locator(MaxNLocator(nbins=6, steps=[1, 2, 2.5, 5, 10]))
@@ -980,48 +1142,19 @@ def _build_polar_figure(items, labels=None, title=None):
     fig.text(_LEFT / _W, 1.0 - 0.22 / H, title, fontsize=FONT["title"], color=INK,
              weight="bold", va="center", ha="left")
 
-    # card column: legend (the sections), then per section its fitted zero-lift angle and slope
-    x_card = (_W - _RIGHT - _CARD_W) / _W
-    x_val = x_card + 0.95 / _W
-    step = _CARD_LINE_H / H
-    y = top / H
-    handles = [Line2D([], [], color=PALETTE[j % len(PALETTE)], linewidth=LINE["upper"])
-               for j in range(len(traces))]
-    leg = ax_cl.legend(handles, [t.label for t in traces], loc="upper left",
-                       bbox_to_anchor=(x_card, y), bbox_transform=fig.transFigure,
-                       fontsize=FONT["legend"], title="sections", title_fontsize=FONT["legend"],
-                       alignment="left", frameon=False, borderpad=0.0, borderaxespad=0.0,
-                       handlelength=2.3, handletextpad=0.6, labelspacing=0.45)
+    # legend in rows along the top of the Cl axes
+    handles = [Line2D([], [], color=_colour(j), linewidth=LINE["upper"],
+                      marker=_marker(j) if (not many or j >= len(PALETTE)) else None,
+                      markersize=3.6, markeredgewidth=0) for j in range(len(traces))]
+    leg = ax_cl.legend(handles, [t.label for t in traces], loc="lower left",
+                       bbox_to_anchor=(0.0, 1.0 + 0.06 / _POLAR_AX_H), ncol=n_cols,
+                       fontsize=FONT["legend"], frameon=False, borderpad=0.0,
+                       borderaxespad=0.0, handlelength=2.3, handletextpad=0.5,
+                       columnspacing=1.4, labelspacing=0.35)
     for text in leg.get_texts():
         text.set_color(INK)
-    leg.get_title().set_color(MUTED)
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-
-    renderer = FigureCanvasAgg(fig).get_renderer()
-    y -= leg.get_window_extent(renderer).height / fig.dpi / H + 0.6 * step
-    fig.add_artist(Line2D([x_card, x_card + (_CARD_W - 0.1) / _W], [y, y], color=RULE,
-                          linewidth=0.6, transform=fig.transFigure))
-    y -= 0.5 * step
-    for j, t in enumerate(traces):
-        colour = PALETTE[j % len(PALETTE)]
-        for text in _wrap_card(t.label):
-            fig.text(x_card, y, text, fontsize=FONT["card"], color=colour, weight="bold",
-                     va="top", ha="left")
-            y -= step
-        a_zero, slope = _lift_fit(t.alpha, t.cl)
-        i_min = int(np.nanargmin(t.cp_min)) if np.isfinite(t.cp_min).any() else None
-        rows = [("panels", t.panels or "not recorded"),
-                ("angles", f"{len(t.alpha)} from {_angle(t.alpha[0])} to {_angle(t.alpha[-1])}"),
-                ("zero lift at", "not fitted" if not np.isfinite(a_zero) else _angle(a_zero)),
-                ("lift slope", "not fitted" if not np.isfinite(slope)
-                 else f"{slope:.4f} per rad"),
-                ("Cp min", "undefined" if i_min is None else
-                 f"{_fixed(t.cp_min[i_min], 3)} at {_angle(t.alpha[i_min])}")]
-        for key, value in rows:
-            fig.text(x_card, y, key, fontsize=FONT["card"], color=MUTED, va="top", ha="left")
-            fig.text(x_val, y, value, fontsize=FONT["card"], color=INK, va="top", ha="left")
-            y -= step
-        y -= 0.5 * step
+    _draw_table(fig, table, _LEFT - 0.3, note_h + table_h - 0.05, _W - _LEFT - _RIGHT + 0.3,
+                _W, H)
 
     fig.text(_LEFT / _W, (0.08 + _NOTE_LINE_H * (len(note) - 0.5)) / H, "\n".join(note),
              fontsize=FONT["note"], color=MUTED, va="center", ha="left", linespacing=1.35)
@@ -1033,9 +1166,9 @@ def polar_figure(analyses_or_tables, labels=None, path=None, overwrite: bool = F
     """Write Cl, Cm and the minimum Cp against the angle of attack, several sections overlaid.
 
     Three axes share the angle-of-attack axis: lift coefficient, pitching moment coefficient
-    (about each case's reference point, nose-up positive) and the main body's minimum Cp with
-    suction upward, as on the Cp figures. The card column names the sections (legend) and gives
-    for each its panels, angle range, the zero-lift angle and lift slope fitted to
+    (about each case's reference point, nose-up positive) and the lowest Cp over every body with
+    suction upward, as on the Cp figures. The legend above names the sections; the strip beneath
+    gives for each its panels, angle range, the zero-lift angle and lift slope fitted to
     ``cl = A cos(alpha) + B sin(alpha)`` (exact for the inviscid circulation lift of one
     geometry; "not fitted" where the data do not follow it) and its lowest Cp with its angle.
 

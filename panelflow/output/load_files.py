@@ -10,15 +10,15 @@ atomically (:func:`panelflow.output.writers.atomic_write_text`) and none is repl
   ``base``) and, with a node transfer, its ``structural_nodes`` (``id``, ``x``, ``y``, ``fx``,
   ``fy``).
 * ``.csv`` -- one row per load node (the structural nodes when given, else the panel end points,
-  numbered 1, 2, ... over all bodies), units in the column names, cautions and totals in ``#``
-  header lines.
+  numbered 1, 2, ... over all bodies) under one header row with the units in the column names;
+  cautions, conditions and totals go beside it into ``NAME.about.json``.
 * ``.vtu`` -- the panels as line cells (through meshio) with point data ``force`` (the nodal
   panel loads, 3 components) and ``pressure``, and cell data ``pressure`` (panel mean) and
   ``body``; cautions in an XML comment.
 * ``.inp`` -- Abaqus-format nodes and two-node line elements of the load nodes (structural nodes
   in loop order when given), one node set per body, written by meshio; the nodal loads go to the
   companion file ``NAME.loads.csv`` keyed by the same node numbers (with the structural node
-  ids beside them). Cautions in ``**`` comment lines.
+  ids beside them; its notes in ``NAME.loads.about.json``). Cautions in ``**`` comment lines.
 
 Coordinates are in metres, the x-y plane of the input frame (the VTU adds z = 0).
 """
@@ -59,9 +59,14 @@ def companion_path(path) -> Path:
 
 
 def output_paths(path) -> list:
-    """Every file one output name writes (a mesh format adds its companion CSV)."""
+    """Every file one output name writes (a mesh format adds its companion CSV; a CSV file
+    has its notes beside it)."""
+    from panelflow.output.columns import with_sidecar
+
     p = Path(path)
-    return [p, companion_path(p)] if p.suffix.lower() == ".inp" else [p]
+    if p.suffix.lower() == ".inp":
+        return [p, *with_sidecar(companion_path(p))]
+    return with_sidecar(p)
 
 
 def check_load_outputs(paths, overwrite: bool = False) -> None:
@@ -177,8 +182,21 @@ def loads_record(loads: Loads) -> dict:
         "notes": list(loads.notes),
         "analysis": json_ready(loads.analysis),
         "transfer": transfer_record(loads),
+        "flap_hinge": hinge_record(loads),
         "bodies": bodies,
     }
+
+
+def hinge_record(loads: Loads) -> dict | None:
+    """The flap's hinge moment as plain data (None without a flap)."""
+    h = loads.hinge
+    if h is None:
+        return None
+    return {"kind": h.kind, "hinge_point": _pt(h.hinge_point), "moment": h.moment,
+            "coefficient": h.coefficient, "flap_chord": h.flap_chord,
+            "normal_force": h.normal_force, "nodes": h.nodes,
+            "convention": "moment nose-up about the hinge point (positive turns the trailing "
+                          "edge down); coefficient = moment / (q flap_chord^2 span)"}
 
 
 def header_lines(loads: Loads) -> list:
@@ -206,6 +224,12 @@ def header_lines(loads: Loads) -> list:
     lines.append(f"equilibrium check against coefficients x q c: largest relative difference "
                  f"{eq.max_relative:.1e} (tolerance {eq.tolerance:.0e}, "
                  f"{'passed' if eq.ok else 'FAILED'})")
+    h = loads.hinge
+    if h is not None:
+        lines.append(f"flap hinge moment {h.moment:.10g} {mu} nose-up about "
+                     f"({h.hinge_point[0]:.8g}, {h.hinge_point[1]:.8g}) m "
+                     f"({'deflected part' if h.kind == 'plain' else 'flap body'}); coefficient "
+                     f"{h.coefficient:.6g} per q c_f^2, flap chord {h.flap_chord:.8g} m")
     t = loads.transfer
     if t is not None:
         lines.append(f"loads moved onto {t.n_nodes} structural nodes from {t.source}: force kept "
@@ -234,14 +258,25 @@ def load_nodes(loads: Loads):
     return out
 
 
-def _csv_text(comment_lines, columns, rows) -> str:
+def _csv_text(columns, rows) -> str:
     buf = io.StringIO()
-    for line in comment_lines:
-        buf.write(f"# {line}\n")
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(columns)
     w.writerows(rows)
     return buf.getvalue()
+
+
+def _write_csv_with_notes(path, loads: Loads, columns, rows, what: str, overwrite) -> list:
+    """A load CSV (one header row) and its notes beside it: cautions, conditions, totals."""
+    from panelflow.output.columns import write_sidecar
+
+    lines = header_lines(loads)
+    notes = [line for line in lines if not line.startswith("CAUTION: ")] + [what]
+    extra = {"cautions": list(loads.cautions), "units": units(loads),
+             "conditions": json_ready(conditions_record(loads))}
+    out = atomic_write_text(path, _csv_text(columns, rows), overwrite)
+    return [out, write_sidecar(path, columns, " ".join(loads.cautions), notes, overwrite,
+                               extra)]
 
 
 # --------------------------------------------------------------------------- writers
@@ -261,8 +296,8 @@ def write_csv(loads: Loads, path, overwrite: bool = False) -> list:
         rows += [[name, int(i), repr(float(a)), repr(float(b)), repr(float(c)), repr(float(d))]
                  for i, a, b, c, d in zip(ids, x, y, fx, fy)]
     columns = ["body", "node", "x [m]", "y [m]", f"fx [{fu}]", f"fy [{fu}]"]
-    text = _csv_text(header_lines(loads) + [f"one row per load node: {what}"], columns, rows)
-    return [atomic_write_text(path, text, overwrite)]
+    return _write_csv_with_notes(path, loads, columns, rows, f"one row per load node: {what}",
+                                 overwrite)
 
 
 def _xml_comment(lines) -> str:
@@ -349,10 +384,9 @@ def write_inp(loads: Loads, path, overwrite: bool = False) -> list:
     text = "".join(f"** {line}\n" for line in lines) + text
     id_what = ("the structural mesh's own node id" if loads.transfer is not None else
                "the same number (panel end points)")
-    csv_text = _csv_text(header_lines(loads) + [f"nodal loads for {Path(path).name}: node = its "
-                                                f"node number, id = {id_what}"],
-                         ["node", "id", "body", "x [m]", "y [m]", f"fx [{fu}]", f"fy [{fu}]"],
-                         rows)
     written = [atomic_write_text(path, text, overwrite)]
-    written.append(atomic_write_text(companion, csv_text, overwrite))
+    written += _write_csv_with_notes(
+        companion, loads, ["node", "id", "body", "x [m]", "y [m]", f"fx [{fu}]", f"fy [{fu}]"],
+        rows, f"nodal loads for {Path(path).name}: node = its node number, id = {id_what}",
+        overwrite)
     return written

@@ -10,12 +10,14 @@ Files (by extension, :data:`TABLE_WRITERS`), both written atomically and never r
 unless asked:
 
 ``.csv``
-    ``#`` comment lines (panelflow version, caution, any notes), then a header row with the column
-    names and one line per row. Numbers are written with 10 significant digits (the solver's
-    accuracy is far coarser), text as is; an undefined number is an empty field.
+    Exactly one header row with the column names, then one line per row, so a spreadsheet opens
+    it as it is. Numbers are written with 10 significant digits (the solver's accuracy is far
+    coarser), text as is; an undefined number is an empty field. The panelflow version, the
+    caution, any notes and what each column means (words, unit) go beside it into
+    ``NAME.about.json`` (:mod:`panelflow.output.columns`).
 ``.json``
     ``{"format": "panelflow table", "panelflow_version", "caution", "notes", "columns",
-    "rows"}`` with ``rows`` a list of objects keyed by column name; numbers at full precision
+    "rows", "column_descriptions"}`` with ``rows`` a list of objects keyed by column name; numbers at full precision
     (they read back bit for bit), undefined numbers ``null``.
 
 Both formats give the same text for the same numbers, so a re-run of a study can be compared
@@ -36,15 +38,19 @@ import numpy as np
 from panelflow.version import __version__
 from panelflow.errors import InputError
 from panelflow.analysis.result import as_result
-from panelflow.output.writers import (CAUTION, POLAR_COLUMNS, atomic_write_text, check_outputs,
-                                     polar_columns)
+from panelflow.output.columns import describe, with_sidecar, write_sidecar
+from panelflow.output.writers import (CAUTION, POLAR_COLUMNS, _floats, atomic_write_text,
+                                     check_outputs, peak_bodies, polar_columns, register_writer)
 
-__all__ = ["POLAR_COLUMNS", "Polar", "Table", "polar", "polar_rows", "tidy_table",
+__all__ = ["POLAR_COLUMNS", "SECTION_COLUMNS", "Polar", "lift_line", "Table", "polar", "polar_rows", "tidy_table",
            "TABLE_WRITERS", "check_table_outputs", "write_table", "write_table_csv",
            "write_table_json", "read_table"]
 
 TABLE_FORMAT = "panelflow table"
-CSV_DIGITS = 10  # significant digits in CSV files, as in panelflow.output.writers.write_polar_csv
+CSV_DIGITS = 10  # significant digits in CSV files
+# after the per-angle numbers of POLAR_COLUMNS: the body with the suction peak (text) and the
+# section's zero-lift angle and lift slope (one value per section, repeated on each row)
+SECTION_COLUMNS = ("cp_min_body", "alpha_zero_lift_deg", "lift_slope_per_deg")
 
 
 @dataclass(frozen=True)
@@ -57,8 +63,8 @@ class Polar:
         The section's name in tables and figure legends.
     alpha_deg, cl, cm, cd_pressure, cp_min, x_cp_min, x_stagnation, cl_error_estimate,
     cm_error_estimate : ndarray, shape (n_alpha,)
-        As in :data:`POLAR_COLUMNS`: totals of all bodies; ``cp_min``, its chord position and
-        the stagnation point are the main (first) body's.
+        As in :data:`POLAR_COLUMNS`: totals of all bodies; ``cp_min`` and its chord position
+        are the suction peak over all bodies, the stagnation point is the main (first) body's.
     chord : float
         Reference chord (the main body's), outline units.
     reference_point : (float, float)
@@ -69,6 +75,11 @@ class Polar:
         Body names.
     extra : dict of str to ndarray
         Further per-angle columns (e.g. ``cl_mach``), in order; empty by default.
+    cp_min_body : tuple of str
+        Per angle, the name of the body with the suction peak (empty: not recorded).
+    alpha_zero_lift, lift_slope : float
+        Zero-lift angle (deg) and lift slope (per degree), see :func:`lift_line`; NaN when not
+        known.
     """
 
     label: str
@@ -86,6 +97,9 @@ class Polar:
     panels: tuple = ()
     bodies: tuple = ()
     extra: dict = field(default_factory=dict)
+    cp_min_body: tuple = ()
+    alpha_zero_lift: float = float("nan")
+    lift_slope: float = float("nan")
 
     def __post_init__(self):
         n = None
@@ -112,6 +126,13 @@ class Polar:
                            tuple(float(v) for v in self.reference_point))
         object.__setattr__(self, "panels", tuple(int(v) for v in self.panels))
         object.__setattr__(self, "bodies", tuple(str(v) for v in self.bodies))
+        peak = tuple(str(v) for v in self.cp_min_body)
+        if peak and len(peak) != n:
+            raise InputError(f"polar {self.label!r}: {len(peak)} suction-peak bodies for {n} "
+                             "angles")
+        object.__setattr__(self, "cp_min_body", peak)
+        object.__setattr__(self, "alpha_zero_lift", float(self.alpha_zero_lift))
+        object.__setattr__(self, "lift_slope", float(self.lift_slope))
 
     @property
     def columns(self) -> tuple:
@@ -131,8 +152,18 @@ class Polar:
         return len(self.alpha_deg)
 
     def table(self) -> Table:
-        """This polar as a table, one row per angle (no section column)."""
-        return Table({name: self.column(name) for name in self.columns})
+        """This polar as a table, one row per angle (no section column): :data:`POLAR_COLUMNS`,
+        :data:`SECTION_COLUMNS`, then the extra columns."""
+        return Table(self._columns())
+
+    def _columns(self) -> dict:
+        n = len(self)
+        cols = {name: getattr(self, name) for name in POLAR_COLUMNS}
+        cols["cp_min_body"] = self.cp_min_body or ("",) * n
+        cols["alpha_zero_lift_deg"] = np.full(n, self.alpha_zero_lift)
+        cols["lift_slope_per_deg"] = np.full(n, self.lift_slope)
+        cols.update(self.extra)
+        return cols
 
 
 def polar(result, label: str | None = None, extra=None) -> Polar:
@@ -159,11 +190,47 @@ def polar(result, label: str | None = None, extra=None) -> Polar:
     margins = {k: v for k, v in columns.items() if k not in POLAR_COLUMNS}
     margins.update(extra or {})
     names = tuple(o.name for o in result.outlines)
+    a0, slope = lift_line(result)
     return Polar(
         label=result.label if label is None else str(label),
         **{k: columns[k] for k in POLAR_COLUMNS},
         chord=float(result.chord), reference_point=tuple(result.reference_point),
-        panels=tuple(pl.n_panels for pl in result.panellings), bodies=names, extra=margins)
+        panels=tuple(pl.n_panels for pl in result.panellings), bodies=names, extra=margins,
+        cp_min_body=peak_bodies(result), alpha_zero_lift=a0, lift_slope=slope)
+
+
+def lift_line(result) -> tuple:
+    """Zero-lift angle (deg) and lift slope (per degree) of a result.
+
+    In free space the circulation lift of one geometry is exactly ``A cos a + B sin a`` (two
+    unit solutions superposed), whose components the solution keeps: the zero-lift angle and the
+    slope there follow exactly, whichever angles were solved. Near a plane the images move with
+    the angle, so both are interpolated between the two solved angles closest to zero lift
+    (NaN with fewer than two angles).
+
+    Returns
+    -------
+    (float, float)
+    """
+    result = as_result(result)
+    unit = np.asarray(getattr(result.fine, "unit_cl", [np.nan, np.nan]), float)
+    if np.all(np.isfinite(unit)) and np.hypot(*unit) > 1e-12:
+        a, b = unit  # cl = a cos(alpha) + b sin(alpha) = amp sin(alpha - alpha_0)
+        amp = float(np.hypot(a, b))
+        return float(np.degrees(np.arctan2(-a, b))), amp * np.pi / 180.0
+    alpha = np.asarray(result.alpha_deg, float)
+    cl = np.asarray(result.cl, float)
+    ok = np.isfinite(cl)
+    alpha, cl = alpha[ok], cl[ok]
+    if len(np.unique(alpha)) < 2:
+        return float("nan"), float("nan")
+    order = np.argsort(np.abs(cl), kind="stable")
+    i = order[0]
+    j = next((k for k in order[1:] if alpha[k] != alpha[i]), None)
+    slope = (cl[j] - cl[i]) / (alpha[j] - alpha[i])
+    if not np.isfinite(slope) or slope == 0.0:
+        return float("nan"), float("nan")
+    return float(alpha[i] - cl[i] / slope), float(slope)
 
 
 def polar_rows(p: Polar):
@@ -254,13 +321,18 @@ def tidy_table(polars, key: str = "section") -> Table:
     dup = sorted({lab for lab in labels if labels.count(lab) > 1})
     if dup:
         raise InputError(f"section labels must differ; used twice: {', '.join(dup)}")
-    names = list(POLAR_COLUMNS)
+    parts = [p._columns() for p in polars]
+    names = list(POLAR_COLUMNS) + list(SECTION_COLUMNS)
     for p in polars:
         names += [n for n in p.extra if n not in names]
     cols = {key: tuple(p.label for p in polars for _ in range(len(p)))}
     for name in names:
+        if name == "cp_min_body":
+            cols[name] = tuple(v for part in parts for v in part[name])
+            continue
         cols[name] = np.concatenate([
-            p.column(name) if name in p.columns else np.full(len(p), np.nan) for p in polars])
+            part[name] if name in part else np.full(len(p), np.nan)
+            for p, part in zip(polars, parts, strict=True)])
     return Table(cols)
 
 
@@ -276,9 +348,10 @@ def _register(ext):
 
 
 def check_table_outputs(paths, overwrite: bool = False) -> None:
-    """Raise :class:`OutputError` unless every table file can be written (known format, folder
-    present, not existing unless ``overwrite``); see :func:`panelflow.output.writers.check_outputs`."""
-    check_outputs(paths, overwrite, registry=TABLE_WRITERS, what="table")
+    """Raise :class:`OutputError` unless every table file (a CSV file's notes beside it
+    included) can be written (known format, folder present, not existing unless
+    ``overwrite``); see :func:`panelflow.output.writers.check_outputs`."""
+    check_outputs(paths, overwrite, registry=TABLE_WRITERS, what="table", expand=with_sidecar)
 
 
 def _csv_value(v) -> str:
@@ -287,26 +360,29 @@ def _csv_value(v) -> str:
     return "" if not math.isfinite(v) else f"{v:.{CSV_DIGITS}g}"
 
 
-def _comments(notes) -> list:
-    return [f"panelflow {__version__}", CAUTION, *[str(n) for n in notes]]
-
-
-@_register(".csv")
-def write_table_csv(table: Table, path, overwrite: bool = False, notes=()) -> Path:
-    """Write ``table`` as CSV under ``#`` comment lines (version, caution, ``notes``).
-
-    Returns
-    -------
-    Path
-    """
+def csv_text(table: Table) -> str:
+    """The CSV text of a table: one header row, one line per row."""
     buf = io.StringIO()
-    for line in _comments(notes):
-        buf.write("# " + " ".join(line.split()) + "\n")
     w = csv.writer(buf, lineterminator="\n")
     w.writerow(table.names)
     for row in table.rows():
         w.writerow([_csv_value(v) for v in row])
-    return atomic_write_text(path, buf.getvalue(), overwrite)
+    return buf.getvalue()
+
+
+@_register(".csv")
+def write_table_csv(table: Table, path, overwrite: bool = False, notes=(), extra=None) -> Path:
+    """Write ``table`` as CSV (one header row) and its notes beside it (version, caution,
+    ``notes``, the columns' words and units: ``NAME.about.json``).
+
+    Returns
+    -------
+    Path
+        The CSV file.
+    """
+    out = atomic_write_text(path, csv_text(table), overwrite)
+    write_sidecar(path, table.names, CAUTION, notes, overwrite, extra)
+    return out
 
 
 def _json_value(v):
@@ -323,6 +399,8 @@ def table_record(table: Table, notes=()) -> dict:
         "caution": CAUTION,
         "notes": [str(n) for n in notes],
         "columns": list(table.names),
+        "column_descriptions": {n: {"words": describe(n).words, "unit": describe(n).unit}
+                                for n in table.names},
         "rows": [{k: _json_value(v) for k, v in zip(table.names, row, strict=True)}
                  for row in table.rows()],
     }
@@ -357,7 +435,7 @@ def read_table(path) -> Table:
 
     Columns whose every value is a number (or empty / null) become float columns, the others
     text. Meant for tables panelflow wrote (other CSV files work when they have one header
-    row after optional ``#`` lines).
+    row; ``#`` lines before it, as earlier versions wrote, are skipped).
 
     Raises
     ------
@@ -403,3 +481,19 @@ def _column(values):
     except (TypeError, ValueError):
         return ["" if v is None else str(v) for v in values]
     return np.array(out, float)
+
+
+# The polar CSV writer lives here, beside the table it writes, so that writers.py need not
+# import this module (which imports it); panelflow/output/__init__.py imports this module, so
+# the writer is registered whenever any output module is.
+@register_writer(".csv")
+def write_polar_csv(result, path, overwrite=False) -> Path:
+    """Write one row per angle as CSV (one header row: the columns of
+    :func:`polar`), its notes beside it in ``NAME.about.json``."""
+    result = as_result(result)
+    ref = result.reference_point
+    notes = [f"chord {result.chord:.9g} (outline units); moments about ({ref[0]:.9g}, "
+             f"{ref[1]:.9g}), nose-up positive", *result.notes]
+    extra = {"bodies": [o.name for o in result.outlines], "chord": result.chord,
+             "reference_point": _floats(ref)}
+    return write_table_csv(polar(result).table(), path, overwrite, notes, extra)

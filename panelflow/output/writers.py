@@ -5,8 +5,6 @@ A registry keyed by file extension lets the CLI pick the writer from the output 
 
 from __future__ import annotations
 
-import csv
-import io
 import json
 import math
 from pathlib import Path
@@ -58,6 +56,7 @@ def analysis_record(result) -> dict:
     """
     result = as_result(result)
     columns = margin_columns(result)
+    peak_cp, peak_x, peak_k = suction_peak(result)
     results = []
     for i, r in enumerate(result):
         row = {
@@ -70,6 +69,9 @@ def analysis_record(result) -> dict:
             "cl_pressure": _clean(r.cl_pressure),
             "cl_circulation": _clean(r.cl_circulation),
             "x_center_of_pressure": _clean(r.x_center_of_pressure),
+            "cp_min": _clean(float(peak_cp[i])),
+            "x_cp_min": _clean(float(peak_x[i])),
+            "cp_min_body": result.outlines[int(peak_k[i])].name,
         }
         row.update({name: _clean(float(values[i])) for name, values in columns.items()})
         row["surface"] = [{
@@ -118,17 +120,43 @@ POLAR_COLUMNS = ("alpha_deg", "cl", "cm", "cd_pressure", "cp_min", "x_cp_min", "
                  "cl_error_estimate", "cm_error_estimate")
 
 
+def suction_peak(result):
+    """The lowest Cp over every body at each angle: ``(cp_min, x_cp_min, body index)``.
+
+    ``x_cp_min`` is the chord fraction along the main body's chord line (as for every x/c in
+    panelflow); the body index counts from 0 in ``result.outlines``. A flap's or a second
+    element's nose often carries the deepest suction, so no body is left out.
+    """
+    f = as_result(result).fine
+    cp = np.asarray(f.cp_min, float).reshape(len(f.alpha_deg), -1)
+    k = np.argmin(np.where(np.isnan(cp), np.inf, cp), axis=1)
+    rows = np.arange(len(k))
+    return cp[rows, k], np.asarray(f.x_cp_min, float).reshape(cp.shape)[rows, k], k
+
+
 def polar_columns(result) -> dict:
-    """Per-angle columns of a result: :data:`POLAR_COLUMNS`, then its margin columns."""
+    """Per-angle numeric columns of a result: :data:`POLAR_COLUMNS`, then its margin columns.
+
+    ``cp_min`` and ``x_cp_min`` are the suction peak over all bodies (:func:`suction_peak`;
+    the body is named by :func:`peak_bodies`); ``x_stagnation`` is the main body's.
+    """
     result = as_result(result)
     f = result.fine
+    cp_min, x_cp_min, _ = suction_peak(result)
     out = {"alpha_deg": f.alpha_deg, "cl": f.cl, "cm": f.cm, "cd_pressure": f.cd_pressure,
-           "cp_min": np.asarray(f.cp_min)[:, 0], "x_cp_min": np.asarray(f.x_cp_min)[:, 0],
+           "cp_min": cp_min, "x_cp_min": x_cp_min,
            "x_stagnation": np.asarray(f.x_stagnation)[:, 0],
            "cl_error_estimate": result.cl_error_estimate,
            "cm_error_estimate": result.cm_error_estimate}
     out.update(margin_columns(result))
     return out
+
+
+def peak_bodies(result) -> tuple:
+    """Name of the body that carries the suction peak, per angle (see :func:`suction_peak`)."""
+    result = as_result(result)
+    names = [o.name for o in result.outlines]
+    return tuple(names[int(k)] for k in suction_peak(result)[2])
 
 
 def polar_rows(result):
@@ -145,23 +173,13 @@ def write_json(result, path, overwrite=False) -> Path:
     return atomic_write_text(path, analysis_json(result), overwrite)
 
 
-@register_writer(".csv")
-def write_polar_csv(result, path, overwrite=False) -> Path:
-    """Write one row per angle (see :func:`polar_columns`) as CSV with a commented header."""
-    result = as_result(result)
-    buf = io.StringIO()
-    buf.write(f"# panelflow {__version__}; chord {result.chord:.9g}; moments about "
-              f"({result.reference_point[0]:.9g}, {result.reference_point[1]:.9g})\n")
-    buf.write(f"# {CAUTION}\n")
-    w = csv.writer(buf, lineterminator="\n")
-    w.writerow(list(polar_columns(result)))
-    for row in polar_rows(result):
-        w.writerow([f"{v:.10g}" if math.isfinite(v) else "" for v in row])
-    return atomic_write_text(path, buf.getvalue(), overwrite)
-
-
 def check_outputs(paths, overwrite=False, registry=None, what="output", expand=None) -> None:
-    """:func:`panelflow.files.check_outputs` with the result writers as the default registry."""
+    """:func:`panelflow.files.check_outputs` with the result writers as the default registry
+    (a CSV file's notes beside it included)."""
+    if registry is None and expand is None:
+        from panelflow.output.columns import with_sidecar
+
+        expand = with_sidecar
     _check_paths(paths, WRITERS if registry is None else registry, overwrite, what, expand)
 
 

@@ -44,6 +44,9 @@ Top level
     ``error_estimate``   false: skip the half-panel solve (no error estimates; faster).
     ``fluid``       ``air``, ``fresh-water`` or ``sea-water``, or ``density`` in kg/m^3;
     ``speed``       m/s. Both are the defaults of the load outputs.
+    ``temperature`` °C, ``salinity`` g/kg (sea water), ``altitude`` m (of the air or of the
+                    water surface): the preset fluid's state; its properties are computed from
+                    the published standards there (default 15 °C, 35 g/kg, sea level).
     ``mach``        subsonic Mach number: adds ``cl_mach``, ``cm_mach``, ``cp_min_mach`` and
                     ``mach_critical`` columns (``mach_rule`` ``karman-tsien`` (default),
                     ``prandtl-glauert`` or ``laitone``).
@@ -76,7 +79,8 @@ Top level
                     ``resolution`` ``[NX, NY]`` (default ``[201, 121]``), ``figure`` (a figure
                     file of the field), ``streamlines`` (in the figure, default 17).
     ``[[outputs.loads]]``   ``file`` (``.json``, ``.csv``, ``.vtu``, ``.inp``), ``alpha``,
-                    ``section``, ``fluid`` or ``density`` and ``speed`` (default the
+                    ``section``, ``fluid`` or ``density`` (with ``temperature``,
+                    ``salinity``, ``altitude``) and ``speed`` (default the
                     conditions'), ``chord`` (m) or ``unit`` (``m``, ``cm``, ``mm``, ``in``,
                     ``ft``), ``span`` (m), ``about`` (a list of ``[X, Y]`` extra moment points).
     Each of the four may be one table (``[outputs.loads]``) or several (``[[outputs.loads]]``).
@@ -121,14 +125,15 @@ KEYS = {
     "flap": ("hinge", "angle", "gap", "radius"),
     "conditions": ("alpha", "cl", "panels", "keep_points", "reference_point", "error_estimate",
                    "fluid", "density", "speed", "mach", "mach_rule", "depth", "unit", "chord",
-                   "ground", "free_surface", "reynolds", "viscous", "critical_amplification",
-                   "turbulence_level", "trip_upper", "trip_lower", "smooth_within"),
+                   "ground", "free_surface", "temperature", "salinity", "altitude",
+                   "reynolds", "viscous", "critical_amplification", "turbulence_level",
+                   "trip_upper", "trip_lower", "smooth_within"),
     "outputs": ("table", "polar_figure", "cp_figure", "field", "loads"),
     "polar_figure": ("file", "sections", "title"),
     "cp_figure": ("file", "alpha", "sections", "title"),
     "field": ("file", "alpha", "section", "window", "resolution", "figure", "streamlines"),
     "loads": ("file", "alpha", "section", "fluid", "density", "speed", "chord", "unit", "span",
-              "about"),
+              "about", "temperature", "salinity", "altitude"),
 }
 
 
@@ -330,6 +335,7 @@ class LoadsOutput:
     unit: str | None = None
     span: float | None = None
     about: tuple = ()
+    fluid_state: tuple = ()  # ((key, value), ...) of temperature, salinity, altitude
 
 
 @dataclass(frozen=True)
@@ -678,21 +684,35 @@ def _flap(ck: _Checker, value, path) -> Flap:
     return Flap(hinge, angle, gap, radius)
 
 
+_STATE_KEYS = ("temperature", "salinity", "altitude")
+
+
+def _fluid_state(ck: _Checker, table: dict, path) -> tuple:
+    """The fluid's ``temperature``, ``salinity`` and ``altitude`` keys as ((key, value), ...)."""
+    return tuple((k, ck.number(table[k], path + (k,))) for k in _STATE_KEYS if k in table)
+
+
 def _fluid(ck: _Checker, table: dict, path):
-    """(fluid name, density) of a table, checked; (None, None) when neither is given."""
-    from panelflow.conditions.fluids import get_fluid
+    """(fluid name, density, state) of a table, checked; (None, None, ()) when neither is
+    given. ``state`` holds the temperature, salinity and altitude given with a preset."""
+    from panelflow.conditions.fluids import make_fluid
 
     if "fluid" in table and "density" in table:
         raise ck.error(path + ("density",), "give either 'fluid' or 'density', not both")
+    state = _fluid_state(ck, table, path)
     if "fluid" in table:
         name = ck.text(table["fluid"], path + ("fluid",))
         try:
-            return get_fluid(name).name, None
+            return make_fluid(name, **dict(state)).name, None, state
         except InputError as exc:
-            raise ck.error(path + ("fluid",), str(exc)) from None
+            key = next((k for k, _ in state if k in str(exc)), "fluid")
+            raise ck.error(path + (key,), str(exc)) from None
+    if state:
+        raise ck.error(path + (state[0][0],), f"'{state[0][0]}' sets a preset fluid's state: "
+                       "give 'fluid' (air, fresh-water or sea-water) too")
     if "density" in table:
-        return None, ck.number(table["density"], path + ("density",), 0.0, low_open=True)
-    return None, None
+        return None, ck.number(table["density"], path + ("density",), 0.0, low_open=True), ()
+    return None, None, ()
 
 
 def _conditions(ck: _Checker, doc: dict):
@@ -731,7 +751,7 @@ def _conditions(ck: _Checker, doc: dict):
            if "reference_point" in c else None)
     est = (ck.boolean(c["error_estimate"], path + ("error_estimate",)) if "error_estimate" in c
            else True)
-    fluid, density = _fluid(ck, c, path)
+    fluid, density, state = _fluid(ck, c, path)
     speed = (ck.number(c["speed"], path + ("speed",), 0.0, low_open=True) if "speed" in c
              else None)
     mach = (ck.number(c["mach"], path + ("mach",), 0.0, 1.0, high_open=True) if "mach" in c
@@ -782,7 +802,8 @@ def _conditions(ck: _Checker, doc: dict):
             alpha_deg=tuple(alpha), target_cl=target, mach=mach, mach_rule=rule,
             fluid=fluid if depth is not None or from_fluid else None,
             speed=speed if depth is not None or from_fluid else None, depth=depth, plane=plane,
-            unit=unit if from_fluid else None, chord=chord if from_fluid else None, **viscous)
+            unit=unit if from_fluid else None, chord=chord if from_fluid else None, **viscous,
+            **(dict(state) if depth is not None or from_fluid else {}))
     except InputError as exc:
         raise ck.error(path, str(exc)) from None
     settings = dict(operating=operating, panels=None if keep else panels, reference_point=ref,
@@ -791,10 +812,10 @@ def _conditions(ck: _Checker, doc: dict):
               "keep_points": keep, "reference_point": list(ref) if ref else None,
               "error_estimate": est, "fluid": fluid, "density": density, "speed": speed,
               "mach": mach, "mach_rule": rule if mach is not None else None, "depth": depth,
-              "unit": unit, "chord": chord,
+              "unit": unit, "chord": chord, **dict(state),
               "plane": ({"kind": plane.kind, "distance": plane.distance} if plane else None),
               **{k: v for k, v in viscous.items()}, "smooth_within": smooth}
-    return settings, record, fluid, density, speed, unit, chord
+    return settings, record, (fluid, state), density, speed, unit, chord
 
 
 def _unit(ck: _Checker, table: dict, path):
@@ -921,9 +942,9 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, 
             else DEFAULT_STREAMLINES))
     loads = []
     for t, p in entries("loads"):
-        f_name, f_density = _fluid(ck, t, p)
+        f_name, f_density, f_state = _fluid(ck, t, p)
         if f_name is None and f_density is None:
-            f_name, f_density = fluid, density
+            (f_name, f_state), f_density = fluid, density
         if f_name is None and f_density is None:
             raise ck.error(p, "loads need a fluid: give 'fluid' (or 'density') here or in "
                            "[conditions]")
@@ -948,7 +969,7 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, 
             name(t["file"], p + ("file",), LOAD_WRITERS, "load file"), alpha(t, p),
             _section_of(ck, t, p, labels), v, f_name, f_density, l_chord, l_unit,
             ck.number(t["span"], p + ("span",), 0.0, low_open=True) if "span" in t else None,
-            about))
+            about, f_state))
         if Path(loads[-1].file).suffix.lower() == ".inp":
             companion = Path(loads[-1].file).stem + ".loads.csv"
             name(companion, p + ("file",), {".csv"}, "load file")

@@ -750,15 +750,18 @@ def _planned(case, folder: Path) -> dict:
 
 
 def _check_planned(planned: dict, folder: Path, overwrite: bool, inputs=()) -> None:
+    from panelflow.output.columns import with_sidecar
     from panelflow.output.field_files import check_field_outputs
     from panelflow.output.load_files import check_load_outputs, output_paths
     from panelflow.output.figures import FIGURE_FORMATS
-    from panelflow.output.tables import TABLE_WRITERS
+    from panelflow.output.tables import check_table_outputs
     from panelflow.output.writers import check_outputs
 
     manifest = folder / MANIFEST_NAME
     every = [manifest, *(p for paths in planned.values() for p in paths)]
-    expanded = [q for p in every for q in (output_paths(p) if p in planned["loads"] else [p])]
+    expanded = [q for p in every for q in (
+        output_paths(p) if p in planned["loads"] else
+        with_sidecar(p) if p in planned["table"] or p in planned["field"] else [p])]
     seen = set()
     for p in expanded:
         if os.path.abspath(p) in seen:
@@ -767,7 +770,7 @@ def _check_planned(planned: dict, folder: Path, overwrite: bool, inputs=()) -> N
     refuse_inputs(expanded, inputs)
     if folder.is_dir():
         check_outputs([manifest], overwrite, registry=(".json",), what="manifest")
-        check_outputs(planned["table"], overwrite, registry=TABLE_WRITERS, what="table")
+        check_table_outputs(planned["table"], overwrite)
         check_outputs(planned["figure"], overwrite, registry=FIGURE_FORMATS, what="figure")
         check_field_outputs(planned["field"], overwrite)
         check_load_outputs(planned["loads"], overwrite)
@@ -783,7 +786,8 @@ def _write_partial(case, folder, planned, inputs, exc, overwrite, executor) -> N
     folder.mkdir(parents=True, exist_ok=True)
     notes = [f"case {Path(case.path).name}; INCOMPLETE RUN: {len(exc.unfinished)} sections did "
              f"not finish ({', '.join(exc.unfinished)})"]
-    written = [write_table(tidy_table(done), path, overwrite, notes) for path in planned["table"]]
+    written = [q for path in planned["table"]
+               for q in _with_notes(write_table(tidy_table(done), path, overwrite, notes))]
     record = manifest_record(case.settings(), inputs, written, base=Path(case.path).parent,
                              folder=folder, executor=_executor_name(executor))
     record["incomplete"] = True
@@ -848,7 +852,7 @@ def run_case(case, executor: cf.Executor | None = None, output=None, overwrite: 
     notes = [f"case {Path(case.path).name}; one row per section and angle; moments nose-up "
              "about each section's reference point, coefficients per its main chord"]
     for path in planned["table"]:
-        written.append(write_table(table, path, overwrite, notes))
+        written += _with_notes(write_table(table, path, overwrite, notes))
     written += _figures(case, folder, polars, overwrite)
     written += _fields(case, folder, overwrite)
     written += _loads(case, folder, overwrite)
@@ -857,6 +861,13 @@ def run_case(case, executor: cf.Executor | None = None, output=None, overwrite: 
                              folder=folder, executor=_executor_name(executor))
     written.append(write_manifest(folder / MANIFEST_NAME, record, overwrite))
     return RunReport(folder, tuple(written), tuple(polars), table)
+
+
+def _with_notes(path) -> list:
+    """A written table and, for a CSV file, the notes written beside it (for the manifest)."""
+    from panelflow.output.columns import with_sidecar
+
+    return with_sidecar(path)
 
 
 def _figures(case, folder, polars, overwrite) -> list:
@@ -891,8 +902,8 @@ def _fields(case, folder, overwrite) -> list:
         window = f.window or default_window(result.outlines)
         points, shape = grid_points(window, f.resolution)
         flow = flow_field(result, points, [alpha], shape)
-        written.append(write_field(flow, folder / f.file, outlines=result.outlines,
-                                   overwrite=overwrite))
+        written += _with_notes(write_field(flow, folder / f.file, outlines=result.outlines,
+                                           overwrite=overwrite))
         if f.figure:
             from panelflow.flow.streamlines import streamlines
             from panelflow.output.figures import field_figure
@@ -906,16 +917,19 @@ def _fields(case, folder, overwrite) -> list:
 
 
 def _loads(case, folder, overwrite) -> list:
-    from panelflow.conditions.fluids import Conditions, resolve_fluid
+    from panelflow.conditions.fluids import Conditions, make_fluid, resolve_fluid
     from panelflow.loads.section import section_loads
     from panelflow.output.load_files import write_loads
 
     written = []
     for f in case.outputs.loads:
         task = _task(case, f.section)
-        fluid = resolve_fluid(f.fluid, f.density)
-        conditions = Conditions(fluid, f.speed, unit=f.unit, chord=f.chord, span=f.span)
+        fluid = (make_fluid(f.fluid, **dict(f.fluid_state)) if f.fluid is not None
+                 else resolve_fluid(None, f.density))
         result = solve_task(task, _angles(case, f.section, f.alpha))
+        unit = f.unit if f.unit is not None or f.chord is not None else \
+            result.problem.length_unit
+        conditions = Conditions(fluid, f.speed, unit=unit, chord=f.chord, span=f.span)
         loads = section_loads(result, conditions, about=f.about)
         written += write_loads(loads, folder / f.file, overwrite=overwrite)
     return written
