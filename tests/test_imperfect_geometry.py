@@ -92,3 +92,52 @@ def test_smoothing_that_would_round_the_edge_is_refused(spec):
     with pytest.raises(GeometryError, match=rf"{spec}: smoothing within 0.2 would round or "
                                             r"close the blunt trailing edge.*smaller distance"):
         quality.smoothed(o, 0.2)
+
+
+# ----------------------------------------------------------------- 3. outlines drawn backwards
+def mirrored(o: Outline) -> Outline:
+    """The same points with x negated, as a table drawn from right to left reads."""
+    pts = np.array(o.points)
+    pts[:, 0] *= -1.0
+    return Outline.from_points(pts, name=o.name, source=o.source)
+
+
+@pytest.mark.parametrize("spec", ["naca2412", "naca0012"])
+def test_mirrored_outline_is_warned_about_in_check_and_solve(spec, tmp_path, capsys):
+    from panelflow.cli.main import main
+    from panelflow.geometry.check import inspect
+
+    o = mirrored(parse_spec(spec))
+    assert abs(o.chord_angle_deg) > 179.0
+    report = inspect(o)
+    assert report.ok  # a user may mean it: warned, not refused
+    assert any(w.startswith(f"{spec}: the trailing edge lies upstream") and
+               "the flow meets the trailing edge first" in w for w in report.warnings)
+    result = pf.solve(Problem((o,), OperatingPoint(alpha_deg=(4.0,))))
+    assert any(n.startswith(f"{spec}: the trailing edge lies upstream") for n in result.notes)
+    # and the forward outline has no such note
+    forward = pf.solve(Problem((parse_spec(spec),), OperatingPoint(alpha_deg=(4.0,))))
+    assert not any("upstream of the leading edge" in n for n in forward.notes)
+    path = tmp_path / "mirrored.dat"
+    path.write_text(f"{spec} mirrored\n" + "".join(f"{x:.6f} {y:.6f}\n" for x, y in o.points))
+    assert main(["check", str(path)]) == 0
+    assert "the flow meets the trailing edge first" in capsys.readouterr().out
+
+
+@pytest.mark.parametrize("turn_deg, warned", [(0.0, False), (30.0, False), (-89.0, False),
+                                              (89.5, False), (91.0, True), (-120.0, True),
+                                              (180.0, True)])
+def test_the_rule_is_an_incidence_beyond_90_degrees(turn_deg, warned):
+    from panelflow.geometry.check import reversed_note
+
+    o = parse_spec("naca2412").rotated(turn_deg, about=(0.5, 0.0))
+    assert (reversed_note(o) is not None) == warned
+
+
+def test_a_body_without_trailing_edge_is_never_backwards():
+    from panelflow.geometry.check import reversed_note
+
+    t = np.linspace(0.0, 2.0 * np.pi, 121)
+    ellipse = Outline.from_points(np.c_[-0.5 * np.cos(t), 0.1 * np.sin(t)], name="strut")
+    assert ellipse.kind == "none"
+    assert reversed_note(ellipse) is None and reversed_note(ellipse.rotated(170.0)) is None

@@ -158,7 +158,9 @@ def model_notes(result: Result) -> tuple:
 
     Every body counts: a suction peak below Cp = -3 on any body is named with the body.
     """
-    notes = []
+    from panelflow.geometry.check import reversed_note
+
+    notes = [n for n in map(reversed_note, result.outlines) if n]
     names = [o.name for o in result.outlines]
     for name in (o.name for o in result.outlines if o.kind == SMOOTH):
         notes.append(
