@@ -183,6 +183,13 @@ class Result:
         return self.inviscid.cl_error_estimate
 
     @property
+    def cp_min_error_estimate(self) -> np.ndarray:
+        """Error estimate of each body's lowest Cp, shape (n_alpha, n_bodies); NaN without one."""
+        est = getattr(self.inviscid, "cp_min_error_estimate", None)
+        return (np.full(np.shape(self.fine.cp_min), np.nan) if est is None
+                else np.asarray(est))
+
+    @property
     def cm_error_estimate(self) -> np.ndarray:
         return self.inviscid.cm_error_estimate
 
@@ -228,15 +235,21 @@ def margin_columns(result: Result) -> dict:
 
     Keys (each an array over the angles), present only when the part was computed:
 
+    * error estimate: ``cp_min_error_estimate`` (the main body's suction peak, as ``cp_min``);
+
     * compressibility: ``cl_mach``, ``cl_mach_error_estimate``, ``cm_mach``,
       ``cm_mach_error_estimate``, ``cp_min_mach`` (main body), ``mach_critical``;
-    * cavitation: ``inception_speed`` (m/s), and with a speed ``cavitation_number`` and
+    * cavitation: ``inception_speed`` (m/s), ``inception_speed_low`` and
+      ``inception_speed_high`` (its range over the suction peak's error estimate), and with a speed ``cavitation_number`` and
       ``cavitation_margin`` (cavitation number plus the lowest Cp: negative when cavitating);
     * plane: ``plane_clearance`` (outline units), ``cl_free_space``, ``cm_free_space``;
     * viscous analysis: see :data:`VISCOUS_COLUMNS` (NaN where the iteration did not converge,
       ``viscous_converged`` 1 or 0).
     """
     out = {}
+    est = getattr(result.inviscid, "cp_min_error_estimate", None)
+    if est is not None and np.any(np.isfinite(est)):
+        out["cp_min_error_estimate"] = np.asarray(est)[:, 0]  # the main body's, as cp_min
     c = result.compressibility
     if c is not None:
         out.update(cl_mach=np.asarray(c.cl), cl_mach_error_estimate=np.asarray(c.cl_error_estimate),
@@ -245,6 +258,9 @@ def margin_columns(result: Result) -> dict:
     v = result.cavitation
     if v is not None:
         out["inception_speed"] = np.asarray(v.section_inception_speed)
+        if np.any(np.isfinite(v.section_inception_speed_low)):
+            out["inception_speed_low"] = np.asarray(v.section_inception_speed_low)
+            out["inception_speed_high"] = np.asarray(v.section_inception_speed_high)
         if np.isfinite(v.speed):
             out["cavitation_number"] = np.full(len(v.alpha_deg), v.sigma)
             out["cavitation_margin"] = np.asarray(v.margin)
