@@ -235,21 +235,18 @@ def margin_columns(result: Result) -> dict:
 
     Keys (each an array over the angles), present only when the part was computed:
 
-    * error estimate: ``cp_min_error_estimate`` (the main body's suction peak, as ``cp_min``);
-
     * compressibility: ``cl_mach``, ``cl_mach_error_estimate``, ``cm_mach``,
       ``cm_mach_error_estimate``, ``cp_min_mach`` (main body), ``mach_critical``;
-    * cavitation: ``inception_speed`` (m/s), ``inception_speed_low`` and
-      ``inception_speed_high`` (its range over the suction peak's error estimate), and with a speed ``cavitation_number`` and
+    * cavitation: ``inception_speed`` (m/s), and with a speed ``cavitation_number`` and
       ``cavitation_margin`` (cavitation number plus the lowest Cp: negative when cavitating);
     * plane: ``plane_clearance`` (outline units), ``cl_free_space``, ``cm_free_space``;
     * viscous analysis: see :data:`VISCOUS_COLUMNS` (NaN where the iteration did not converge,
-      ``viscous_converged`` 1 or 0).
+      ``viscous_converged`` 1 or 0);
+    * last, with an error estimate: ``cp_min_error_estimate`` (the main body's suction peak, as
+      ``cp_min``), and with cavitation ``inception_speed_low`` and ``inception_speed_high`` (the
+      inception speed's range over that estimate).
     """
     out = {}
-    est = getattr(result.inviscid, "cp_min_error_estimate", None)
-    if est is not None and np.any(np.isfinite(est)):
-        out["cp_min_error_estimate"] = np.asarray(est)[:, 0]  # the main body's, as cp_min
     c = result.compressibility
     if c is not None:
         out.update(cl_mach=np.asarray(c.cl), cl_mach_error_estimate=np.asarray(c.cl_error_estimate),
@@ -258,9 +255,6 @@ def margin_columns(result: Result) -> dict:
     v = result.cavitation
     if v is not None:
         out["inception_speed"] = np.asarray(v.section_inception_speed)
-        if np.any(np.isfinite(v.section_inception_speed_low)):
-            out["inception_speed_low"] = np.asarray(v.section_inception_speed_low)
-            out["inception_speed_high"] = np.asarray(v.section_inception_speed_high)
         if np.isfinite(v.speed):
             out["cavitation_number"] = np.full(len(v.alpha_deg), v.sigma)
             out["cavitation_margin"] = np.asarray(v.margin)
@@ -273,6 +267,15 @@ def margin_columns(result: Result) -> dict:
         out.update({column: v.column(field_) for column, field_ in VISCOUS_COLUMNS.items()})
         out["viscous_converged"] = v.converged.astype(float)
         out["viscous_residual"] = v.column("residual")
+    # the suction peak's estimate and the inception speed's range over it, after the columns
+    # above so that their order is kept
+    est = getattr(result.inviscid, "cp_min_error_estimate", None)
+    if est is not None and np.any(np.isfinite(est)):
+        out["cp_min_error_estimate"] = np.asarray(est)[:, 0]  # the main body's, as cp_min
+    v = result.cavitation
+    if v is not None and np.any(np.isfinite(v.section_inception_speed_low)):
+        out["inception_speed_low"] = np.asarray(v.section_inception_speed_low)
+        out["inception_speed_high"] = np.asarray(v.section_inception_speed_high)
     return out
 
 
