@@ -48,6 +48,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from panelflow.conditions.cavitation import PEAK_NOTE_SHARE
 from panelflow.errors import GeometryError
 from panelflow.geometry.panelling import MIN_PANELS, panelled_like, respline
 from panelflow.geometry.panels import Panels
@@ -487,7 +488,7 @@ def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, 
 CP_ORDER = 1.5
 # A suction peak known no better than this fraction of itself is noted, and the cavitation
 # inception speed computed from it is given as a range (conditions/cavitation.py).
-CP_MIN_NOTE_SHARE = 0.05
+CP_MIN_NOTE_SHARE = PEAK_NOTE_SHARE
 # An estimate above this fraction of the peak itself means the panel counts and the curves the
 # input supports disagree by about as much as the peak: the solutions are outside the
 # asymptotic range in which a Richardson estimate holds (Roache 1998 uses the grid convergence

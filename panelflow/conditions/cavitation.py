@@ -34,6 +34,9 @@ from panelflow.errors import InputError
 
 STANDARD_GRAVITY = 9.80665  # m/s^2, 3rd CGPM (1901), ISO 80000-3
 STANDARD_ATMOSPHERE = 101325.0  # Pa, the standard atmosphere at sea level (ISO 2533)
+# A suction peak known no better than this fraction of itself gets its inception speed as a
+# range in the notes (the analysis notes the peak itself at the same share).
+PEAK_NOTE_SHARE = 0.05
 
 CAUTIONS = (
     ("Cavitation inception is the inviscid first estimate -Cp_min >= sigma: real inception also "
@@ -165,7 +168,7 @@ class CavitationResult:
         inception speed over ``cp_min -/+ cp_min_error_estimate`` (lowest of the bodies at each
         end; NaN without an estimate, ``inf`` where the peak may not be below zero at all).
     notes : tuple of str
-        Angles whose suction peak is known no better than ``CP_MIN_NOTE_SHARE`` of itself (the
+        Angles whose suction peak is known no better than ``PEAK_NOTE_SHARE`` of itself (the
         inception speed as a range), and angles at which cavitation is possible within the
         estimate though not expected at the peak as computed.
     """
@@ -277,15 +280,13 @@ def assess(result, depth, density, vapour_pressure, speed=None,
 
 def _range_notes(alpha, names, cp, err, v_i, low, high, sigma, cavitating) -> list[str]:
     """Sentences on inception speeds that rest on an uncertain suction peak."""
-    from panelflow.analysis.accuracy import CP_MIN_NOTE_SHARE
-
     out = []
     k = np.argmin(cp, axis=1)
     rows = np.arange(len(alpha))
     peak, e = cp[rows, k], err[rows, k]
     with np.errstate(invalid="ignore", divide="ignore"):
         share = e / np.abs(peak)
-    for i in np.flatnonzero(~(share <= CP_MIN_NOTE_SHARE)):
+    for i in np.flatnonzero(~(share <= PEAK_NOTE_SHARE)):
         if not np.isfinite(e[i]):
             out.append(f"alpha {alpha[i]:g}: the inception speed {v_i[i]:.3g} m/s rests on a "
                        f"suction peak of {names[k[i]]} (Cp {peak[i]:.3g}) without an error "
