@@ -33,7 +33,7 @@ from shapely.geometry import LinearRing
 
 from panelflow.errors import GeometryError
 from panelflow.geometry import curve
-from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline, signed_area
+from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline
 
 # --------------------------------------------------------------------------- stated limits
 # A point is doubtful (probably mistyped) when its distance from the curve through its
@@ -416,9 +416,7 @@ def _opened_at_input_start(outline: Outline) -> Outline | None:
         return None
     ring = np.asarray(outline.points[:-1], float)
     start = int(np.argmin(outline.lines[:-1]))
-    order = np.r_[np.roll(np.arange(len(ring)), -start), start]
-    if signed_area(ring) < 0:  # pragma: no cover - an Outline always runs counter-clockwise
-        return None
+    order = np.r_[np.roll(np.arange(len(ring)), -start), start]  # counter-clockwise, as given
     try:
         return Outline(outline.name, ring[order], SHARP, outline.source,
                        outline.lines[:-1][order])
