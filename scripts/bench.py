@@ -481,7 +481,7 @@ def goal_viscous_point(n_panels: int = 200, reynolds: float = 3e6, alpha: float 
         return out
 
     with threads.limited(1), threads.one_blas_thread():
-        t_inv, t_vis = _best_wall(inviscid, 7), _best_wall(viscous, 3)
+        t_inv, t_vis = _best_wall(inviscid, 7), _best_wall(viscous, 5)
     return {"inviscid_s": t_inv, "viscous_s": t_vis, "ratio": t_vis / t_inv}
 
 

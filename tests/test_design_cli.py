@@ -170,3 +170,36 @@ table = "table.json"
     assert rows["thickness_1"]["result_holds"] is True
     code, _, err = run(capsys, "optimise", case, "-o", tmp_path / "res")
     assert code == 1 and "exists" in err
+
+
+def test_optimise_that_cannot_meet_its_constraints_exits_with_status_3(tmp_path, capsys):
+    # 30 % thick at 30 % chord within 5 % of the chord's square in area: impossible; the files
+    # are written for inspection and the exit status says the goal was not reached
+    text = BASE + """
+[constraints]
+thickness = [{ at = 0.3, min = 0.3, max = 0.3 }]
+area = { max = 0.05 }
+[design]
+functions = 6
+panels = 100
+starts = 1
+iterations = 20
+"""
+    code, out, err = run(capsys, "optimise", _case(tmp_path, text), "-o", tmp_path / "res")
+    assert code == 3, err
+    assert "WITHOUT meeting every constraint" in out
+    assert err.strip().splitlines()[-1].startswith("panelflow: the optimised section does not")
+    assert (tmp_path / "res" / "manifest.json").exists()
+
+
+def test_inverse_that_does_not_converge_exits_with_status_3(tmp_path, capsys):
+    # half a chord thick at 30 % chord and a plateau for a 10 %-thick foil: the iteration stops
+    # unconverged; the section is written for inspection, the exit status says so
+    out = tmp_path / "x.dat"
+    code, text, err = run(capsys, "inverse", FOIL, "--plateau", "-0.6,0.05,0.4,0.8", "--alpha",
+                          "2", "--thickness-at", "0.3,0.5", "--functions", "8", "--panels",
+                          "120", "-o", out)
+    assert code == 3, err
+    assert "NOT converged" in text
+    assert "did not converge" in err.strip().splitlines()[-1]
+    assert out.exists()

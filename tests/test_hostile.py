@@ -62,6 +62,75 @@ def test_limits(argv, fragment, here, capsys):
     assert out == "" and not (here / "r.json").exists()
 
 
+# Found by a hostile-user trial: each printed a traceback or a meaningless result with exit 0.
+@pytest.mark.parametrize("argv, fragment", [
+    (("circle:1e300", "--alpha", "4"), "beyond +/-1e+09"),  # once OverflowError
+    (("naca0012@scale=1e12", "--alpha", "4"), "beyond +/-1e+09"),
+    (("naca0012@pitch=1e300", "--alpha", "4"), "within +/-180"),  # once cl -5.48, exit 0
+    (("naca0012@name=", "--alpha", "4"), "name= needs a name"),
+    (("naca9999", "--alpha", "4"), "99 % thick"),  # a 99 %-thick "section", exit 0
+    (("naca16-999", "--alpha", "4"), "99 % thick"),
+    (("naca0012", "--alpha", "4", "--mach", "0"), "leave it out"),  # once Cp* nan
+    (("naca0012", "--alpha", "4", "--mach", "1e-300"), "leave it out"),  # once Cp* -inf
+    (("naca0012", "--alpha", "4", "--mach-rule", "laitone"), "needs a Mach number"),
+    (("naca0012", "--alpha", "4", "--flap-gap", "0.01"), "--flap XH,ANGLE"),
+    (("naca0012", "--alpha", "4", "--keep-points", "--panels", "100"), "--keep-points"),
+    (("naca0012", "--alpha", "4", "--flap", "0.7,10", "--flap-gap", "1e-300"), "flap gap"),
+    (("naca0012", "--alpha", "4", "--smooth-within", "10"), "at most 1 %"),
+    (("naca0012", "--alpha", "4", "--ref", "1e300,0"), "reference point"),
+    (("naca0012", "--cl", "50"), "target lift"),
+    (("naca0012", "--alpha", "4", "--fluid", "sea-water", "--speed", "5", "--depth", "1e300"),
+     "depth (m)"),
+    (("naca0012", "--alpha", "4", "--density", "1000", "--speed", "5", "--depth", "1"),
+     "density alone"),  # once named the internal "user" fluid
+    (("naca0012", "--alpha", "4", "--reynolds", "1e6", "--viscous", "--fluid", "sea-water",
+      "--speed", "5", "--chord", "0.2"), "the Reynolds number is given"),
+])
+def test_trial_refusals(argv, fragment, here, capsys):
+    out = refused(capsys, "solve", *argv, "-o", "r.json", fragment=fragment)
+    assert out == "" and not (here / "r.json").exists()
+
+
+@pytest.mark.parametrize("extra, fragment", [
+    (("--speed", "1e300"), "speed (m/s)"),  # once OverflowError
+    (("--speed", "8", "--chord", "1e300"), "chord (m)"),  # once a JSON ValueError on nan
+])
+def test_trial_load_refusals(extra, fragment, here, capsys):
+    refused(capsys, "loads", str(FOIL), "--alpha", "4", "--fluid", "sea-water", *extra,
+            "-o", "l.json", fragment=fragment)
+    assert not (here / "l.json").exists()
+
+
+@pytest.mark.parametrize("argv, fragment", [
+    (("field", "naca0012", "--alpha", "2", "--streamlines", "100000", "--plot", "f.png"),
+     "--streamlines 100000"),  # once ran for minutes
+    (("field", "naca0012", "--alpha", "2", "--points", "p.csv", "--window", "-1,2,-1,1",
+      "-o", "f.csv"), "--window"),  # once ignored
+    (("inverse", str(FOIL), "--plateau=-0.6,0.05,0.4,0.8", "--alpha", "2", "--functions",
+      "5000", "-o", "i.dat"), "5000 shape functions"),  # once ran for minutes
+    (("inverse", str(FOIL), "--plateau=-0.6,0.05,0.4,0.8", "--surface", "upper", "--alpha",
+      "2", "--functions", "0", "-o", "i.dat"), "0 shape functions"),  # once accepted
+])
+def test_trial_command_limits(argv, fragment, here, capsys):
+    (here / "p.csv").write_text("x,y\n0.5,0.5\n")
+    refused(capsys, *argv, fragment=fragment)
+    assert not any((here / n).exists() for n in ("f.png", "f.csv", "i.dat"))
+
+
+def test_outline_with_too_many_points(here, capsys):
+    # a 400 000-point table once ran for minutes with no word; the cap is on one body's points
+    import numpy as np
+
+    t = np.linspace(0.0, 2.0 * np.pi, 100_002)[:-1]
+    np.savetxt(here / "scan.dat", np.c_[0.5 + 0.5 * np.cos(t), 0.06 * np.sin(t)], fmt="%.9f")
+    refused(capsys, "check", "scan.dat", fragment="at most 100000 per body")
+
+
+def test_workers_beyond_the_limit(here, capsys):
+    with pytest.raises(InputError, match="at most 256"):
+        runner.make_executor(workers=100_000)
+
+
 def test_section_points_zero_is_refused(here, capsys):
     # once wrote 201 points without a word
     refused(capsys, "section", "naca0012", "--points", "0", "-o", "s.dat", fragment="0")

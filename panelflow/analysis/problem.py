@@ -27,7 +27,7 @@ from panelflow.conditions.compressibility import KARMAN_TSIEN, RULES, check_mach
 from panelflow.conditions.fluids import UNITS, Fluid, get_fluid, user_fluid
 from panelflow.errors import InputError
 from panelflow.flow.images import MAX_DISTANCE_CHORDS, Boundary
-from panelflow.geometry.outline import Outline
+from panelflow.geometry.outline import MAX_COORDINATE, Outline
 
 DEFAULT_PANELS = 200
 # the error estimate solves again at half the panels, which needs 8 at least
@@ -42,6 +42,15 @@ MAX_PANELS_TOTAL = 8000
 MAX_ANGLES = 100_000
 MAX_PLANE_ANGLES = 2000
 MAX_ABS_ALPHA_DEG = 90.0
+# Ranges of the operating conditions (each refusal says why)
+MIN_MACH = 0.01
+MAX_TARGET_CL = 10.0
+MAX_SPEED = 1000.0  # m/s
+MAX_DEPTH = 11_000.0  # m
+CHORD_RANGE = (1e-6, 1e3)  # m
+FLAP_GAP_RANGE = (1e-3, 0.1)  # chord fractions
+MAX_FLAP_RADIUS = 0.1  # chord fraction
+MAX_SMOOTHING = 0.01  # fraction of the body's chord
 
 __all__ = ["Flap", "OperatingPoint", "Problem", "check_output", "OUTPUTS", "DEFAULT_PANELS",
            "MIN_PANELS", "MAX_PANELS_PER_BODY", "MAX_PANELS_TOTAL", "MAX_ANGLES",
@@ -68,6 +77,15 @@ def _positive(value, what: str, allow_zero: bool = False) -> float:
     if v < 0.0 or (v == 0.0 and not allow_zero):
         raise InputError(f"{what} must be {'zero or ' if allow_zero else ''}positive, got {v:g}")
     return v
+
+
+def _within(value: float, low: float, high: float, what: str, why: str) -> float:
+    """``value`` when ``low <= |value| <= high``, else one line with the range and the reason."""
+    if not low <= abs(value) <= high:
+        size = " in size" if value < 0 else ""
+        span = f"at most {high:g}{size}" if low == 0 else f"{low:g} to {high:g}{size}"
+        raise InputError(f"{what} {value:g}: give {span} ({why})")
+    return value
 
 
 @dataclass(frozen=True)
@@ -102,8 +120,13 @@ class Flap:
         object.__setattr__(self, "hinge", h)
         object.__setattr__(self, "angle", a)
         if self.gap is not None:
-            object.__setattr__(self, "gap", _positive(self.gap, "flap gap"))
-        object.__setattr__(self, "radius", _positive(self.radius, "flap radius"))
+            object.__setattr__(self, "gap", _within(
+                _positive(self.gap, "flap gap"), *FLAP_GAP_RANGE, "flap gap (chord fraction)",
+                "a narrower slot is finer than the panels around it can follow; a wider one "
+                "is no longer a slotted flap"))
+        object.__setattr__(self, "radius", _within(
+            _positive(self.radius, "flap radius"), 0.0, MAX_FLAP_RADIUS,
+            "flap radius (chord fraction)", "a rounding of the hinge corner, not a new nose"))
 
     def apply(self, outline: Outline):
         """The flapped section of ``outline`` (:class:`~panelflow.geometry.flap.FlappedSection`)."""
@@ -190,7 +213,9 @@ class OperatingPoint:
         if self.target_cl is not None:
             if len(alpha):
                 raise InputError("give either angles of attack or a target lift, not both")
-            object.__setattr__(self, "target_cl", _finite(self.target_cl, "target lift"))
+            object.__setattr__(self, "target_cl", _within(
+                _finite(self.target_cl, "target lift"), 0.0, MAX_TARGET_CL,
+                "target lift coefficient", "beyond what any section of this model carries"))
         elif not len(alpha):
             raise InputError("give the angles of attack (or a target lift coefficient)")
         if not np.all(np.isfinite(alpha)):
@@ -204,7 +229,13 @@ class OperatingPoint:
                              + (" near a plane (each is a factorisation)" if self.plane else ""))
         object.__setattr__(self, "alpha_deg", tuple(float(a) for a in alpha))
         if self.mach is not None:
-            object.__setattr__(self, "mach", float(check_mach(self.mach)))
+            mach = float(check_mach(self.mach))
+            if mach < MIN_MACH:
+                raise InputError(f"Mach number {mach:g}: below {MIN_MACH:g} the corrections "
+                                 "change the coefficients by less than 1e-4 (and the critical "
+                                 "pressure coefficient is not finite at 0): leave it out for "
+                                 "incompressible flow")
+            object.__setattr__(self, "mach", mach)
         rule = str(self.mach_rule).lower()
         if rule not in RULES:
             raise InputError(f"Mach correction rule {self.mach_rule!r}: use one of "
@@ -270,21 +301,30 @@ class OperatingPoint:
                              f"{type(self.fluid).__name__}")
         object.__setattr__(self, "density", None)
         if self.speed is not None:
-            object.__setattr__(self, "speed", _positive(self.speed, "speed"))
+            object.__setattr__(self, "speed", _within(
+                _positive(self.speed, "speed"), 0.0, MAX_SPEED, "speed (m/s)",
+                "faster than sound in air, and far beyond cavitation in water: the flow is no "
+                "longer the incompressible one solved here"))
         if self.depth is not None:
-            object.__setattr__(self, "depth", _positive(self.depth, "depth", allow_zero=True))
+            object.__setattr__(self, "depth", _within(
+                _positive(self.depth, "depth", allow_zero=True), 0.0, MAX_DEPTH, "depth (m)",
+                "the deepest ocean"))
             if self.fluid is None:
                 raise InputError("the cavitation check at a depth needs the fluid: fresh-water "
                                  "or sea-water")
             if self.fluid.vapour_pressure is None:
+                what = ("a fluid given by its density alone" if self.fluid.name == "user"
+                        else self.fluid.name)
                 raise InputError(f"the cavitation check needs a liquid with a vapour pressure; "
-                                 f"{self.fluid.name} has none: use fresh-water or sea-water")
+                                 f"{what} has none: use fresh-water or sea-water")
         if self.unit is not None and self.chord is not None:
             raise InputError("give either the outline's unit or a chord in metres, not both")
         if self.unit is not None and self.unit not in UNITS:
             raise InputError(f"unknown length unit {self.unit!r}; use one of {', '.join(UNITS)}")
         if self.chord is not None:
-            object.__setattr__(self, "chord", _positive(self.chord, "chord"))
+            object.__setattr__(self, "chord", _within(
+                _positive(self.chord, "chord"), *CHORD_RANGE, "chord (m)",
+                "from a model's micro-foil to a ship's rudder, with room to spare"))
 
     @property
     def n_angles(self) -> int:
@@ -376,12 +416,23 @@ class Problem:
             raise InputError(f"{sum(counts)} panels in all: at most {MAX_PANELS_TOTAL} (the dense "
                              f"system would need {8 * sum(counts)**2 / 2**30:.1f} GiB)")
         if self.reference_point is not None:
-            ref = tuple(_finite(v, "reference point") for v in np.ravel(self.reference_point))
+            ref = tuple(_within(_finite(v, "reference point"), 0.0, MAX_COORDINATE,
+                                "reference point coordinate", "the outlines' own range")
+                        for v in np.ravel(self.reference_point))
             if len(ref) != 2:
                 raise InputError("the reference point needs two coordinates (x, y)")
             object.__setattr__(self, "reference_point", ref)
         if self.smoothing is not None:
-            object.__setattr__(self, "smoothing", _positive(self.smoothing, "smoothing distance"))
+            d = _positive(self.smoothing, "smoothing distance")
+            for b in bodies:
+                if d > MAX_SMOOTHING * b.chord:
+                    raise InputError(
+                        f"{b.label}: smoothing distance {d:g} is {100 * d / b.chord:.3g} % of "
+                        f"its chord {b.chord:g}; at most {100 * MAX_SMOOTHING:g} %: smoothing "
+                        "takes out digitising noise (a fraction of a millimetre on a chord of "
+                        "a few hundred), it does not reshape a section (the reshape command "
+                        "does)")
+            object.__setattr__(self, "smoothing", d)
         if self.flap is not None and not isinstance(self.flap, Flap):
             raise InputError(f"flap must be a Flap, got {type(self.flap).__name__}")
         object.__setattr__(self, "error_estimate", bool(self.error_estimate))
@@ -446,13 +497,17 @@ def _refusals(op: OperatingPoint, output: str) -> list:
             not op.viscous or op.reynolds is not None) and (
             op.fluid is not None or op.speed is not None):
         out.append("a fluid and a speed serve the cavitation check or the viscous analysis "
-                   "here: give the running depth, or ask for the viscous analysis (loads take "
-                   "them without)")
+                   "here: " + ("the Reynolds number is given, so they are not used; leave them "
+                               "out, or leave out the Reynolds number to have it from them"
+                               if op.reynolds is not None else
+                               "give the running depth, or ask for the viscous analysis")
+                   + " (loads take them without)")
     if output in ("solve", "compare", "field", "figures") and (
             not op.viscous or op.reynolds is not None) and (op.unit is not None
                                                             or op.chord is not None):
         out.append("a length unit or chord in metres serves the loads or the viscous "
-                   "analysis's Reynolds number; the coefficients here do not depend on it")
+                   "analysis's Reynolds number; the coefficients here do not depend on it"
+                   + (" (the Reynolds number is given)" if op.reynolds is not None else ""))
     return out
 
 

@@ -25,6 +25,10 @@ from panelflow.version import __version__
 
 # kept importable from here for earlier callers
 _join_numeric_values = join_numeric_values
+# exit status of a design that finished but did not reach its goal (its files are written)
+EXIT_NOT_REACHED = 3
+# streamlines a field figure may ask for: more than this fill the window with ink
+MAX_STREAMLINES = 200
 
 
 def _solve(problem):
@@ -113,6 +117,11 @@ def _cmd_field(ns) -> int:
         raise InputError("give a field file with -o FILE and/or a figure with --plot FIGURE")
     if ns.points and ns.plot:
         raise InputError("--plot draws a grid field: use --window/--resolution, not --points")
+    if ns.points and ns.window:
+        raise InputError("--window: it places a grid; with --points the field is at the file's "
+                         "points")
+    if not 0 <= ns.streamlines <= MAX_STREAMLINES:
+        raise InputError(f"--streamlines {ns.streamlines}: give 0 to {MAX_STREAMLINES}")
     _guard(ns, [*outputs, ns.plot])
     check_field_outputs(outputs, ns.force)
     _check_figure(ns)
@@ -480,7 +489,18 @@ def _cmd_inverse(ns) -> int:
         sys.stdout.write(json.dumps(json_ready(record), indent=1) + "\n")
     else:
         sys.stdout.write(run.summary())
-    return 0
+    return _design_status(run, "the inverse design did not converge (its mismatch is in the "
+                          "table)" if not run.result.converged else
+                          "a thickness limit does not hold in the design model")
+
+
+def _design_status(run, why: str) -> int:
+    """0 when a design reached its goal; else one line and EXIT_NOT_REACHED (files kept)."""
+    if run.reached:
+        return 0
+    print(f"panelflow: {why}; the files are written for inspection (exit status "
+          f"{EXIT_NOT_REACHED})", file=sys.stderr)
+    return EXIT_NOT_REACHED
 
 
 def _cmd_optimise(ns) -> int:
@@ -492,7 +512,7 @@ def _cmd_optimise(ns) -> int:
     with open_executor(workers=ns.workers, scheduler=ns.scheduler) as executor:
         run = run_optimisation(case, executor, output=ns.output, overwrite=ns.force)
     sys.stdout.write(run.summary())
-    return 0
+    return _design_status(run, "the optimised section does not meet every constraint")
 
 
 def _add_design_parsers(sub, common) -> None:

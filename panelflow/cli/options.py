@@ -74,7 +74,7 @@ def parse_angles(items):
 
 def add_geometry_options(g) -> None:
     """Panelling and flap options."""
-    g.add_argument("--panels", type=int, default=DEFAULT_PANELS, metavar="N",
+    g.add_argument("--panels", type=int, metavar="N",
                    help=f"panels per body on a spline through the points (default "
                    f"{DEFAULT_PANELS})")
     g.add_argument("--keep-points", action="store_true",
@@ -85,7 +85,7 @@ def add_geometry_options(g) -> None:
                    "ANGLE degrees (trailing edge down positive)")
     g.add_argument("--flap-gap", type=float, metavar="G",
                    help="make it a separate flap body with this slot gap (fraction of the chord)")
-    g.add_argument("--flap-radius", type=float, default=0.01, metavar="R",
+    g.add_argument("--flap-radius", type=float, metavar="R",
                    help="rounding radius at the hinge (fraction of the chord, default 0.01)")
     g.add_argument("--smooth-within", type=float, metavar="D",
                    help="first fit each body with a smoothing curve that moves no point by more "
@@ -101,7 +101,7 @@ def add_condition_options(g, angles_help: str) -> None:
     g.add_argument("--mach", type=float, metavar="M",
                    help="freestream Mach number: compressibility-corrected coefficients and "
                    "pressures, and the critical Mach number")
-    g.add_argument("--mach-rule", default="karman-tsien",
+    g.add_argument("--mach-rule",
                    choices=("karman-tsien", "prandtl-glauert", "laitone"),
                    help="compressibility correction (default karman-tsien)")
     g.add_argument("--fluid", metavar="NAME", help="air, fresh-water or sea-water")
@@ -147,6 +147,8 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
         raise InputError("give either --alpha or --cl, not both")
     if ns.cl is None and not ns.alpha:
         raise InputError("give the angles of attack with --alpha (or a target lift with --cl)")
+    if ns.mach_rule is not None and ns.mach is None:
+        raise InputError("--mach-rule: the correction rule needs a Mach number (--mach)")
     alpha = tuple(parse_angles(ns.alpha)) if ns.alpha else ()
     if single_angle and len(alpha) > 1:
         raise InputError(f"--alpha: {ns.command} is for one angle, got {len(alpha)}")
@@ -155,7 +157,8 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
         plane = Boundary.ground(ns.ground)
     elif ns.free_surface is not None:
         plane = Boundary.free_surface(ns.free_surface)
-    return OperatingPoint(alpha_deg=alpha, target_cl=ns.cl, mach=ns.mach, mach_rule=ns.mach_rule,
+    rule = {} if ns.mach_rule is None else {"mach_rule": ns.mach_rule}
+    return OperatingPoint(alpha_deg=alpha, target_cl=ns.cl, mach=ns.mach, **rule,
                           fluid=ns.fluid, density=ns.density, speed=ns.speed, depth=ns.depth,
                           unit=ns.unit, chord=ns.chord, plane=plane, reynolds=ns.reynolds,
                           viscous=ns.viscous,
@@ -166,9 +169,14 @@ def operating_of(ns, single_angle: bool = False) -> OperatingPoint:
 
 def flap_of(ns) -> Flap | None:
     if not ns.flap:
+        unused = [o for o, v in (("--flap-gap", ns.flap_gap), ("--flap-radius", ns.flap_radius))
+                  if v is not None]
+        if unused:
+            raise InputError(f"{unused[0]}: it shapes a flap; give the flap with --flap XH,ANGLE")
         return None
     hinge, angle = parse_numbers(ns.flap, 2, "--flap")
-    return Flap(hinge, angle, ns.flap_gap, ns.flap_radius)
+    radius = {} if ns.flap_radius is None else {"radius": ns.flap_radius}
+    return Flap(hinge, angle, ns.flap_gap, **radius)
 
 
 def _check_panels(n: int) -> None:
@@ -184,9 +192,13 @@ def problem_of(ns, bodies, operating: OperatingPoint, label: str = "") -> Proble
         ref = arguments.parse_point(ns.ref, "--ref")
         if not all(math.isfinite(v) for v in ref):
             raise InputError(f"--ref {ns.ref}: give two finite numbers as X,Y")
+    if ns.keep_points and ns.panels is not None:
+        raise InputError(f"--panels {ns.panels}: not used with --keep-points (the given points "
+                         "are the panel ends); give one of the two")
+    panels = DEFAULT_PANELS if ns.panels is None else ns.panels
     if not ns.keep_points:
-        _check_panels(ns.panels)
-    return Problem(tuple(bodies), operating, panels=None if ns.keep_points else ns.panels,
+        _check_panels(panels)
+    return Problem(tuple(bodies), operating, panels=None if ns.keep_points else panels,
                    reference_point=ref, flap=flap_of(ns), smoothing=ns.smooth_within,
                    label=label)
 

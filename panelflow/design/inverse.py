@@ -40,6 +40,8 @@ from panelflow.geometry.outline import Outline
 __all__ = ["ThicknessLimit", "InverseResult", "inverse_design", "design_form",
            "DEFAULT_DESIGN_PANELS", "TRAILING_EDGE_ALLOWANCE"]
 
+# shape functions of an inverse design (the optimisation takes the same range, design/job.py)
+MIN_FUNCTIONS, MAX_FUNCTIONS = 4, 40
 DEFAULT_DESIGN_PANELS = 240
 TRAILING_EDGE_ALLOWANCE = 0.01
 # Second-difference smoothing of the coefficients, relative to the mean diagonal of J^T J: only
@@ -189,6 +191,11 @@ def design_form(outline: Outline, target: CpTarget, functions: int = DEFAULT_FUN
     section (``functions`` shape functions, the start fitted) or, for a target over part of it,
     the start itself plus functions inside the targeted span(s), in proportion to their
     length."""
+    n = int(functions)
+    if not MIN_FUNCTIONS <= n <= MAX_FUNCTIONS:
+        raise InputError(f"{functions} shape functions: give {MIN_FUNCTIONS} to {MAX_FUNCTIONS} "
+                         "(more than the panels' sensitivities can tell apart only slows the "
+                         "design down)")
     spans = design_spans(target)
     if spans is None:
         form = form_of(outline, full_basis(functions))

@@ -60,6 +60,11 @@ class OptimisationRun:
     start: Check = field(repr=False)
     designed: Check = field(repr=False)
 
+    @property
+    def reached(self) -> bool:
+        """Every constraint met, by the optimiser and on the check of the written file."""
+        return bool(self.result.feasible) and self.designed.constraints_hold
+
     def summary(self) -> str:
         r = self.result
         best = r.starts[r.best]
@@ -94,6 +99,11 @@ class InverseRun:
     result: InverseResult = field(repr=False)
     start: Check = field(repr=False)
     designed: Check = field(repr=False)
+
+    @property
+    def reached(self) -> bool:
+        """The iteration converged and every thickness limit holds."""
+        return bool(self.result.converged) and all(ok for *_, ok in self.result.limits)
 
     def summary(self) -> str:
         r = self.result

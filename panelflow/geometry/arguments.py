@@ -23,6 +23,7 @@ from panelflow.errors import GeometryError, InputError
 
 MAX_ANGLES = 100_000
 TRANSFORMS = ("name", "scale", "pitch", "move")
+MAX_PITCH_DEG = 180.0
 
 
 def parse_angles(items) -> np.ndarray:
@@ -96,11 +97,18 @@ def transformed(outline, key: str, value, label: str):
     """
     try:
         if key == "name":
+            if not str(value).strip():
+                raise InputError(f"{label}: name= needs a name")
             return outline.renamed(str(value))
         if key == "scale":
             return outline.scaled(float(value))
         if key == "pitch":
-            return outline.rotated(float(value), about=outline.leading_edge)
+            deg = float(value)
+            if not abs(deg) <= MAX_PITCH_DEG:  # also refuses nan
+                raise InputError(f"{label}: pitch={value}: give an angle within +/-"
+                                 f"{MAX_PITCH_DEG:g} degrees (a larger turn is a smaller one "
+                                 "in disguise)")
+            return outline.rotated(deg, about=outline.leading_edge)
         if key == "move":
             dx, dy = value
             return outline.translated(float(dx), float(dy))

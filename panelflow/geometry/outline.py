@@ -42,6 +42,10 @@ _BASE_TURN = np.radians(30.0)
 _STRAIGHT_TURN = np.radians(3.0)
 _BASE_MAX_FRACTION = 0.25
 MIN_POINTS = 5
+# Largest coordinate magnitude of any outline, in its own length unit: a kilometre in metres or a
+# metre in micrometres fits; beyond, the geometry's products (areas, squared distances) leave
+# float64's range long before anything meaningful is asked of them.
+MAX_COORDINATE = 1e9
 
 
 def _feature_at_start(poly, turn, first, open_ends):
@@ -209,6 +213,12 @@ class Outline:
             raise GeometryError(f"{self.label}: {len(pts)} points; at least {MIN_POINTS} needed")
         if not np.all(np.isfinite(pts)):
             raise GeometryError(f"{self.label}: coordinates must be finite numbers")
+        big = np.abs(pts) > MAX_COORDINATE
+        if np.any(big):
+            k = int(np.argmax(big.any(axis=1)))
+            raise GeometryError(f"{self.label}: point {k + 1} ({pts[k, 0]:.6g}, {pts[k, 1]:.6g}) "
+                                f"is beyond +/-{MAX_COORDINATE:.0e}: not a section outline in "
+                                "any length unit (check the spec, the file or the transforms)")
         if self.lines is not None:
             lines = np.asarray(self.lines, dtype=np.int64)
             if lines.shape != (len(pts),):

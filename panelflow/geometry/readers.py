@@ -52,7 +52,7 @@ from typing import Callable
 import numpy as np
 
 from panelflow.errors import GeometryError, InputError
-from panelflow.geometry.outline import Outline
+from panelflow.geometry.outline import MAX_COORDINATE, Outline
 from panelflow.geometry.specs import SPEC_HELP, parse_spec
 from panelflow.files import atomic_write_text, check_input, read_input
 
@@ -70,9 +70,9 @@ READERS: dict[str, Reader] = {}
 
 _SPLIT = re.compile(r"[,\s]+")
 _COLUMN_LABEL = re.compile(r"[(\[]?[xy]([^a-z].*)?", re.IGNORECASE)
-# Largest coordinate read (any unit): a 10 m chord in micrometres is 1e7; far larger numbers
-# are a corrupt or wrong file, and squares of numbers near 1e154 overflow.
-MAX_COORDINATE = 1e9
+# Points of one body read from a file: checking the points costs about 60 microseconds each,
+# so this keeps a file's checks within seconds
+MAX_OUTLINE_POINTS = 100_000
 _BINARY_PROBE = 8192  # bytes looked at for NUL bytes; text tables never hold one
 
 
@@ -281,6 +281,10 @@ def _names(bodies: list[_Body], stem: str) -> list[str]:
 
 def _outline(points: np.ndarray, name: str, path: Path, where: str,
              starts_at_te: bool = True, lines=None) -> Outline:
+    if len(points) > MAX_OUTLINE_POINTS:
+        raise InputError(f"{path}: {where}{len(points)} points; at most {MAX_OUTLINE_POINTS} per "
+                         "body (a section needs a few hundred, and the panels are placed on a "
+                         "curve through them: thin a scan out first)")
     big = np.abs(points) > MAX_COORDINATE
     if np.any(big):
         k = int(np.argmax(big.any(axis=1)))

@@ -55,6 +55,9 @@ MIN_SECTION_POINTS = 11  # fewer cannot show a leading edge and a trailing edge 
 # and an ellipse 20:1 up to 30 times; with 801 points at most about 1 (thin sections, 100-200
 # panels) and well below for ordinary ones.
 DEFAULT_POINTS = 801
+# Thickest built-in section, as a fraction of the chord: the families were tested up to about
+# 25 % (NACA Reports 460 and 824, from memory); 40 % still gives a sensible strut fairing.
+MAX_THICKNESS = 0.40
 
 # NACA Report 460 thickness coefficients (y_t = 5 t (a0 sqrt(x) + a1 x + ... + a4 x^4)).
 _THICKNESS_COEFFS = (0.2969, -0.1260, -0.3516, 0.2843, -0.1015)
@@ -169,8 +172,7 @@ def naca4(digits: str, n_points: int = DEFAULT_POINTS, closed_te: bool = False) 
     spec = _naca_spec(d, closed_te)
     n = _check_points(n_points, spec)
     m, p, t = int(d[0]) / 100.0, int(d[1]) / 10.0, int(d[2:]) / 100.0
-    if t <= 0.0:
-        raise InputError(f"{spec}: thickness (last two digits) must be at least 01")
+    _check_thickness(t, spec)
     if m > 0.0 and p == 0.0:
         raise InputError(f"{spec}: a cambered section needs a max-camber position "
                          "(second digit 1-9)")
@@ -178,6 +180,16 @@ def naca4(digits: str, n_points: int = DEFAULT_POINTS, closed_te: bool = False) 
     yt = _thickness(x, t, closed_te)
     yc, dyc = mean_line_4(x, m, p)
     return _assemble(x, yt, yc, dyc, spec)
+
+
+def _check_thickness(t: float, spec: str) -> None:
+    """A thickness (chord fraction) the published equations describe a section at."""
+    if t <= 0.0:
+        raise InputError(f"{spec}: thickness must be at least 01 percent (the last two digits)")
+    if t > MAX_THICKNESS:
+        raise InputError(f"{spec}: {100 * t:g} % thick; the thickness equations describe "
+                         f"sections up to {100 * MAX_THICKNESS:g} % of the chord (beyond, the "
+                         "two surfaces no longer make a foil)")
 
 
 def mean_line_4(x: np.ndarray, m: float, p: float) -> tuple[np.ndarray, np.ndarray]:
@@ -228,6 +240,7 @@ def naca5(digits: str, n_points: int = DEFAULT_POINTS, closed_te: bool = False) 
     n = _check_points(n_points, spec)
     lift_digit, pos_digit, reflex = int(d[0]), int(d[1]), int(d[2])
     t = int(d[3:]) / 100.0
+    _check_thickness(t, spec)
     if reflex == 1:
         raise InputError(f"{spec}: only non-reflexed 5-digit mean lines (third digit 0) are "
                          "supported")
@@ -241,7 +254,7 @@ def naca5(digits: str, n_points: int = DEFAULT_POINTS, closed_te: bool = False) 
         raise InputError(f"{spec}: no standard mean line for second digit {pos_digit}; "
                          "use 1-5 (mean lines 210 to 250)")
     if t <= 0.0:
-        raise InputError(f"{spec}: thickness (last two digits) must be at least 01")
+        raise InputError(f"{spec}: thickness must be at least 01 percent (the last two digits)")
     x = _cosine_stations(n)
     yt = _thickness(x, t, closed_te)
     yc, dyc = mean_line_5(x, lift_digit, pos_digit)

@@ -263,8 +263,7 @@ def _sections():
 
 def _thickness_digits(t_digits: str, spec: str) -> float:
     t = int(t_digits) / 100.0
-    if t <= 0.0:
-        raise InputError(f"{spec}: thickness must be at least 01 percent")
+    _sections_module._check_thickness(t, spec)
     return t
 
 

@@ -56,6 +56,7 @@ __all__ = ["BodySource", "Flap", "SectionTask", "section_tasks", "split_settings
 
 MANIFEST_NAME = "manifest.json"
 # Seconds without any section finishing before a distributed or multi-process study gives up.
+MAX_WORKERS = 256
 DEFAULT_TIMEOUT = 600.0
 # Seconds to reach a scheduler and to find a worker there.
 CONNECT_TIMEOUT = 10.0
@@ -555,6 +556,9 @@ def make_executor(workers: int | None = None, scheduler: str | None = None,
         return None
     if isinstance(workers, bool) or not isinstance(workers, (int, np.integer)) or workers < 1:
         raise InputError(f"--workers {workers}: give a whole number of at least 1")
+    if workers > MAX_WORKERS:
+        raise InputError(f"--workers {workers}: at most {MAX_WORKERS} local processes (more "
+                         "only queue for the same cores; a cluster is --scheduler's job)")
     if workers == 1:
         return None
     share = max(1, threads.cap() // int(workers))

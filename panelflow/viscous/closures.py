@@ -25,6 +25,7 @@ station, where Python floats are several times faster than numpy scalars).
 
 from __future__ import annotations
 
+import functools
 import math
 
 import numpy as np
@@ -83,6 +84,7 @@ def laminar(h: float) -> tuple[float, float, float]:
     return _fitted(ENERGY_SHAPE, h), _fitted(FRICTION, h), _fitted(DISSIPATION, h)
 
 
+@functools.lru_cache(maxsize=64)  # a pure function of m, asked for m = 1 at every iteration
 def laminar_similar_state(m: float) -> tuple[float, float]:
     """Self-similar solution of the laminar integral equations for Ue = C s^m.
 
@@ -190,7 +192,18 @@ def _fitted_array(c, h):
 def laminar_array(h):
     """:func:`laminar` on an array of shape factors."""
     h = np.asarray(h, float)
-    return _fitted_array(ENERGY_SHAPE, h), _fitted_array(FRICTION, h), _fitted_array(DISSIPATION, h)
+    lo, hi = LAMINAR_H_RANGE
+    hc = np.clip(h, lo, hi)
+    t = np.log(hc - 1.0)
+    out = hc != h
+    values = []
+    for c in (ENERGY_SHAPE, FRICTION, DISSIPATION):  # the logarithm shared by the three fits
+        v = np.polyval(c, t)
+        if np.any(out):
+            d = _DERIVATIVES.setdefault(c, np.polyder(np.asarray(c)))
+            v = v + np.polyval(d, t) / (hc - 1.0) * (h - hc)
+        values.append(v)
+    return tuple(values)
 
 
 def turbulent_array(h, re_theta, wake):

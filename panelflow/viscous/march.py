@@ -83,7 +83,8 @@ def _lam_residual(ta, ha, ua, hsa, q1a, q2a, lt, h, a, k, ds, re):
 
 
 def laminar_step(sa: State, ds: float, a: float, k: float, re: float,
-                 h_max: float | None = None) -> tuple[State, bool]:
+                 h_max: float | None = None,
+                 tolerance: float = NEWTON_TOL) -> tuple[State, bool]:
     """Laminar state one interval ``ds`` downstream of ``sa`` (edge speed by the law A, K)."""
     ta, ha, ua = sa.theta, sa.h, sa.ue
     hsa, q1a, q2a = _lam_terms(ta, ha, ua, re)
@@ -93,7 +94,7 @@ def laminar_step(sa: State, ds: float, a: float, k: float, re: float,
     ok = False
     for _ in range(MAX_NEWTON):
         r1, r2 = _lam_residual(ta, ha, ua, hsa, q1a, q2a, lt, h, a, k, ds, re)
-        if abs(r1) + abs(r2) < NEWTON_TOL:
+        if abs(r1) + abs(r2) < tolerance:
             ok = True
             break
         e1, e2 = 1e-7, 1e-7 * max(1.0, h)
@@ -158,7 +159,8 @@ def _solve3(j, r):
 
 
 def turbulent_step(sa: State, ds: float, a: float, k: float, re: float,
-                   wake: bool = False, h_max: float | None = None) -> tuple[State, bool]:
+                   wake: bool = False, h_max: float | None = None,
+                   tolerance: float = NEWTON_TOL) -> tuple[State, bool]:
     """Turbulent (or wake) state one interval ``ds`` downstream of ``sa``."""
     ta, ha, ca, ua = sa.theta, sa.h, sa.third, sa.ue
     terms_a = _turb_terms(ta, ha, ca, ua, re, wake)
@@ -168,7 +170,7 @@ def turbulent_step(sa: State, ds: float, a: float, k: float, re: float,
     ok = False
     for _ in range(MAX_NEWTON):
         r = _turb_residual(ta, ha, ca, ua, terms_a, *x, a, k, ds, re, wake)
-        if abs(r[0]) + abs(r[1]) + abs(r[2]) < NEWTON_TOL:
+        if abs(r[0]) + abs(r[1]) + abs(r[2]) < tolerance:
             ok = True
             break
         steps = (1e-7, 1e-7 * max(1.0, x[1]), 1e-7 * max(1e-3, abs(x[2])))
@@ -246,7 +248,7 @@ class DirectEdge:
 
 def march(s, edge, re: float, start: State, *, critical_amplification: float = 9.0,
           trip_arc: float | None = None, wake: bool = False,
-          h_max: tuple | None = None) -> MarchResult:
+          h_max: tuple | None = None, tolerance: float = NEWTON_TOL) -> MarchResult:
     """March from ``start`` (the state at station 0) over the stations at arc lengths ``s``.
 
     Parameters
@@ -269,6 +271,9 @@ def march(s, edge, re: float, start: State, *, critical_amplification: float = 9
     h_max : (float, float) or None
         Caps of the laminar and turbulent shape factors (a rough attached-flow march, used to
         start the coupled iteration); None: the methods' own limits.
+    tolerance : float
+        Of each step's Newton iteration (a march that only starts the coupled iteration needs
+        less than the default).
     """
     s = np.asarray(s, float)
     n = len(s)
@@ -287,9 +292,9 @@ def march(s, edge, re: float, start: State, *, critical_amplification: float = 9
         ds = s[i] - s[i - 1]
         a, k = edge.law(i)
         if st.turbulent:
-            new, ok = turbulent_step(st, ds, a, k, re, wake, cap_t)
+            new, ok = turbulent_step(st, ds, a, k, re, wake, cap_t, tolerance)
         else:
-            new, ok = laminar_step(st, ds, a, k, re, cap_l)
+            new, ok = laminar_step(st, ds, a, k, re, cap_l, tolerance)
             trip_here = trip_arc is not None and s[i - 1] < trip_arc <= s[i]
             if new.third >= critical_amplification or trip_here:
                 # transition inside the interval: laminar up to the point, turbulent after it
@@ -306,12 +311,13 @@ def march(s, edge, re: float, start: State, *, critical_amplification: float = 9
                 t_index = i
                 if frac > 1e-6:
                     ue_t = st.ue + frac * (new.ue - st.ue)
-                    mid, ok_l = laminar_step(st, frac * ds, ue_t, 0.0, re, cap_l)
+                    mid, ok_l = laminar_step(st, frac * ds, ue_t, 0.0, re, cap_l, tolerance)
                 else:
                     mid, ok_l = st, True
                 tstart = turbulent_start(mid, re)
                 if frac < 1.0 - 1e-6:
-                    new, ok = turbulent_step(tstart, (1.0 - frac) * ds, a, k, re, wake, cap_t)
+                    new, ok = turbulent_step(tstart, (1.0 - frac) * ds, a, k, re, wake, cap_t,
+                                             tolerance)
                 else:
                     new, ok = tstart, ok_l
                 ok = ok and ok_l

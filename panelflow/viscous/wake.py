@@ -2,8 +2,9 @@
 
 The wake panels follow the streamline that leaves the trailing edge along the bisector of the
 two surfaces, traced by the midpoint rule (second order) in the inviscid flow of the body at the
-given angle. Steps start at the size of the trailing-edge panels and grow geometrically, so that
-the wake's first panels match the body's and the wake reaches ``length`` chords downstream.
+given angle. Steps start at the size of the trailing-edge panels (or of the last boundary-layer
+stations, if larger) and grow geometrically, so that the wake's first panels match the body's
+and the wake reaches ``length`` chords downstream.
 """
 
 from __future__ import annotations
@@ -58,7 +59,8 @@ def trailing_edge(system: System, body: int = 0):
 
 
 def wake_nodes(system: System, gamma: np.ndarray, alpha_deg: float, chord: float,
-               n_nodes: int, length: float = WAKE_LENGTH, body: int = 0) -> np.ndarray:
+               n_nodes: int, length: float = WAKE_LENGTH, body: int = 0,
+               first_step: float = 0.0) -> np.ndarray:
     """Nodes of the wake panels (complex), from the trailing edge downstream.
 
     Parameters
@@ -71,8 +73,11 @@ def wake_nodes(system: System, gamma: np.ndarray, alpha_deg: float, chord: float
         Reference chord; the wake is ``length`` chords long.
     n_nodes : int
         Number of wake nodes including the trailing-edge point.
+    first_step : float
+        Smallest first step (default: the trailing-edge panels' mean length).
     """
     z0, d0, h0 = trailing_edge(system, body)
+    h0 = max(h0, first_step)
     total = length * chord
     n = n_nodes - 1
     # geometric growth ratio r with h0 (1 + r + ... + r^(n-1)) = total, by bisection
