@@ -33,11 +33,12 @@ def test_polar_equals_the_writers_rows(analyses):
     a = analyses["naca2412"]
     p = polar(a)
     assert p.label == "naca2412"
-    assert p.columns == POLAR_COLUMNS
+    # then the suction peak's error estimate, the one margin column of a plain analysis
+    assert p.columns == (*POLAR_COLUMNS, "cp_min_error_estimate")
     rows = list(writer_rows(a))
     assert len(rows) == len(p)
     for i, row in enumerate(rows):
-        for name, value in zip(POLAR_COLUMNS, row, strict=True):
+        for name, value in zip(p.columns, row, strict=True):
             # the same numbers from the same arrays: exact
             assert p.column(name)[i] == value, name
 
@@ -61,7 +62,8 @@ def test_tidy_table(analyses):
     polars = [polar(a, lab) for lab, a in analyses.items()]
     polars[1] = polar(analyses["naca0012"], "naca0012", extra={"cl_mach": np.arange(5.0)})
     t = tidy_table(polars)
-    assert t.names == ("section", *POLAR_COLUMNS, *SECTION_COLUMNS, "cl_mach")
+    assert t.names == ("section", *POLAR_COLUMNS, *SECTION_COLUMNS, "cp_min_error_estimate",
+                       "cl_mach")
     assert len(t) == 3 * len(ANGLES)
     assert t["section"] == tuple(lab for lab in analyses for _ in ANGLES)
     np.testing.assert_array_equal(t.where("section", "naca4412")["cl"], analyses["naca4412"].cl)

@@ -48,6 +48,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from panelflow.conditions.cavitation import PEAK_NOTE_SHARE
 from panelflow.errors import GeometryError
 from panelflow.geometry.panelling import MIN_PANELS, panelled_like, respline
 from panelflow.geometry.panels import Panels
@@ -88,6 +89,10 @@ class InputTerm:
     variants : int
         How many other curves were solved (0 when the given points are the panel ends: then the
         panels' own every-other-point coarsening already measures the input's resolution).
+    cp_min : ndarray, shape (n_alpha, n_bodies), or None
+        Estimated error of each body's lowest Cp from the input points alone (the largest
+        change of the suction peak over the same curves, times ``INPUT_FACTOR``); None when
+        not estimated.
     """
 
     cl: np.ndarray
@@ -95,6 +100,7 @@ class InputTerm:
     unit_cl: np.ndarray
     unit_cm: np.ndarray
     variants: int
+    cp_min: np.ndarray | None = None
 
 
 @dataclass(frozen=True)
@@ -110,6 +116,11 @@ class ErrorTerms:
         The third panel count's excess alone (zero where it is not larger).
     inputs : InputTerm
         The input's share.
+    cp_min : ndarray, shape (n_alpha, n_bodies), or None
+        The additions to the suction peak's two-panel-count estimate: the third panel count's
+        excess, the input's share and the smoothing's share.
+    smoothing : SmoothingTerm or None
+        The smoothing's share, when the bodies were smoothed (:func:`smoothing_error`).
     """
 
     cl: np.ndarray
@@ -117,6 +128,8 @@ class ErrorTerms:
     panels_cl: np.ndarray
     panels_cm: np.ndarray
     inputs: InputTerm
+    cp_min: np.ndarray | None = None
+    smoothing: "SmoothingTerm | None" = None
 
 
 def _angle_weights(alpha_deg):
@@ -126,8 +139,25 @@ def _angle_weights(alpha_deg):
             np.stack([np.ones_like(a), ca * ca, 2 * ca * sa, sa * sa], axis=1))
 
 
+def _variant(bodies, coarse_panellings, parameter, alpha, chord_line, reference_point):
+    """Surface solution on other curves, panelled like the coarse solve (own chord line unless
+    the user fixed one)."""
+    from panelflow.flow.surface import evaluate
+
+    panels = Panels.from_panellings([panelled_like(o, pl, parameter)
+                                     for o, pl in zip(bodies, coarse_panellings)])
+    if chord_line is None:
+        main = bodies[0]
+        line = ChordLine(main.leading_edge, main.trailing_edge.point.copy())
+    else:
+        line = ChordLine(*(np.asarray(p, float) for p in chord_line))
+    ref = (np.asarray(reference_point, float) if reference_point is not None
+           else line.leading_edge + 0.25 * (line.trailing_edge - line.leading_edge))
+    return evaluate(factorise(panels), alpha, line, ref)
+
+
 def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord_line=None,
-                           reference_point=None, scatters=None) -> InputTerm:
+                           reference_point=None, scatters=None, coarse_cp_min=None) -> InputTerm:
     """Error estimate due to the input's own resolution (see the module docstring).
 
     Parameters
@@ -151,40 +181,43 @@ def input_resolution_error(outlines, coarse_panellings, alpha_deg, coarse, chord
     scatters : sequence of float, optional
         Random scatter of each body's points (0 where there is none), when already measured
         (:func:`panelflow.geometry.quality.scatter`).
+    coarse_cp_min : ndarray, shape (n_alpha, n_bodies), optional
+        Each body's lowest Cp in the coarse solve: the suction peak's input share is estimated
+        beside the coefficients' (the peak is no linear combination of the angle basis, so it
+        is compared angle by angle).
 
     Returns
     -------
     InputTerm
     """
     alpha = np.atleast_1d(np.asarray(alpha_deg, float))
-    zero = InputTerm(np.zeros(len(alpha)), np.zeros(len(alpha)), np.zeros(2), np.zeros(4), 0)
+    zero_cp = (None if coarse_cp_min is None
+               else np.zeros_like(np.asarray(coarse_cp_min, float)))
+    zero = InputTerm(np.zeros(len(alpha)), np.zeros(len(alpha)), np.zeros(2), np.zeros(4), 0,
+                     zero_cp)
     if any(pl.method != "spline" for pl in coarse_panellings):
         return zero
     d_cl, d_cm, count = np.zeros(2), np.zeros(4), 0
+    d_cp = None if zero_cp is None else zero_cp.copy()
     if scatters is None:
         scatters = [scatter(o) for o in outlines]
     for bodies, parameter, weight in _variants(outlines, scatters):
         try:
-            panels = Panels.from_panellings([panelled_like(o, pl, parameter)
-                                             for o, pl in zip(bodies, coarse_panellings)])
+            other = _variant(bodies, coarse_panellings, parameter, alpha, chord_line,
+                             reference_point)
         except GeometryError:  # too few points left to halve: nothing to compare with
             continue
-        if chord_line is None:
-            main = bodies[0]
-            line = ChordLine(main.leading_edge, main.trailing_edge.point.copy())
-        else:
-            line = ChordLine(*(np.asarray(p, float) for p in chord_line))
-        ref = (np.asarray(reference_point, float) if reference_point is not None
-               else line.leading_edge + 0.25 * (line.trailing_edge - line.leading_edge))
-        other = coefficients(factorise(panels), alpha, line, ref)
         d_cl = np.maximum(d_cl, weight * np.abs(other.unit_cl - coarse.unit_cl))
         d_cm = np.maximum(d_cm, weight * np.abs(other.unit_cm - coarse.unit_cm))
+        if d_cp is not None:
+            d_cp = np.maximum(d_cp, weight * np.abs(other.cp_min - coarse_cp_min))
         count += 1
     if not count:
         return zero
     w_cl, w_cm = _angle_weights(alpha)
     return InputTerm(INPUT_FACTOR * np.abs(w_cl) @ d_cl, INPUT_FACTOR * np.abs(w_cm) @ d_cm,
-                      INPUT_FACTOR * d_cl, INPUT_FACTOR * d_cm, count)
+                     INPUT_FACTOR * d_cl, INPUT_FACTOR * d_cm, count,
+                     None if d_cp is None else INPUT_FACTOR * d_cp)
 
 
 def _variants(outlines, scatters):
@@ -206,6 +239,125 @@ def _variants(outlines, scatters):
         smooth.append(o)
     if moved:
         yield smooth, "chord", NOISE_WEIGHT
+
+
+# --------------------------------------------------------------------------- smoothing
+# The smoothing's own share. A smoothing curve (--smooth-within) moves the points by up to the
+# distance asked for, and the answer with them; the input term above, taken on the smoothed
+# points, cannot see that. The share is the change of the answer between the smoothed curve and
+# a reference curve, solved at the coarse panel count on the same arc-length fractions:
+#
+#   * the points as given, where they make a simple outline of the same trailing-edge kind
+#     (a body whose edge the smoothing found again is opened at that edge, as the smoothing
+#     did);
+#   * otherwise (the given points cross themselves, say) the smoothing within a half or a
+#     quarter of the distance or, where those still cross, within twice it: for a reference at
+#     m times the distance the change is scaled by 1 / |m - 1| (the change grows about in
+#     proportion to the distance: measured on Karman-Trefftz tables, see
+#     tests/test_imperfect_geometry.py);
+#
+# and counts SMOOTHING_FACTOR times: measured against exact Karman-Trefftz solutions (161- and
+# 60-point tables, clean, rounded to 3 or 4 decimals, scatter 1e-4 and 3e-4 chord, smoothing
+# within 0.05 % of the chord) factor 1 left some lifts outside the printed estimate, factor 2
+# none (tests/test_imperfect_geometry.py).
+SMOOTHING_FACTOR = 2.0
+_SMOOTHING_REFERENCES = (0.5, 0.25, 2.0)
+
+
+@dataclass(frozen=True)
+class SmoothingTerm:
+    """Error estimate due to the smoothing of the input points, per angle.
+
+    Attributes
+    ----------
+    cl, cm : ndarray, shape (n_alpha,)
+    cp_min : ndarray, shape (n_alpha, n_bodies)
+        The suction peak's share; NaN unless measured against the points as given (measured on
+        Karman-Trefftz tables rounded to 3 decimals or with scatter of 1e-4 chord, whose given
+        points cross at the trailing edge: against a smoothing within half the distance the
+        change of the peak was a tenth of its error, so no estimate is given there).
+    reference : str
+        What the smoothed curve was compared with (for the notes); empty when nothing could be
+        (then the smoothing's share is unknown and a note says so).
+    """
+
+    cl: np.ndarray
+    cm: np.ndarray
+    cp_min: np.ndarray
+    reference: str
+
+
+def _simple(outlines) -> bool:
+    from shapely.geometry import LinearRing
+
+    return all(LinearRing(o.polygon).is_simple for o in outlines)
+
+
+def _smoothing_references(smoothed_bodies, given, tolerance):
+    """(bodies, scale, description) of the curves the smoothed one is compared with."""
+    from panelflow.geometry.quality import _opened_at_input_start, smoothed
+
+    raw = []
+    for s, g in zip(smoothed_bodies, given):
+        if s.kind != g.kind:  # the smoothing found the edge the scatter hid: open it there
+            g = _opened_at_input_start(g)
+        raw.append(g)
+    if all(r is not None for r in raw) and _simple(raw):
+        yield raw, 1.0, "the points as given"
+    for m in _SMOOTHING_REFERENCES:
+        try:
+            ref = [smoothed(g, m * tolerance).outline for g in given]
+        except GeometryError:
+            continue
+        if all(r.kind == s.kind for r, s in zip(ref, smoothed_bodies)):
+            yield ref, 1.0 / abs(m - 1.0), f"the smoothing within {m * tolerance:.3g}"
+
+
+def smoothing_error(smoothed_bodies, given, tolerance, coarse_panellings, alpha_deg, coarse,
+                    coarse_cp_min, chord_line=None, reference_point=None) -> SmoothingTerm:
+    """Error estimate due to the smoothing (see the comment above :data:`SMOOTHING_FACTOR`).
+
+    Parameters
+    ----------
+    smoothed_bodies : sequence of Outline
+        The bodies as solved (smoothed).
+    given : sequence of Outline
+        The same bodies before smoothing.
+    tolerance : float
+        The smoothing distance.
+    coarse_panellings : sequence of Panelling
+        The half-count panellings of the smoothed bodies.
+    alpha_deg : array_like
+    coarse : Coefficients
+        The coarse solve on the smoothed bodies.
+    coarse_cp_min : ndarray, shape (n_alpha, n_bodies)
+    chord_line, reference_point : optional
+        As the user gave them.
+
+    Returns
+    -------
+    SmoothingTerm
+    """
+    alpha = np.atleast_1d(np.asarray(alpha_deg, float))
+    cp0 = np.asarray(coarse_cp_min, float)
+    for bodies, scale, what in _smoothing_references(smoothed_bodies, given, tolerance):
+        try:
+            other = _variant(bodies, coarse_panellings, "chord", alpha, chord_line,
+                             reference_point)
+        except GeometryError:
+            continue
+        f = SMOOTHING_FACTOR * scale
+        w_cl, w_cm = _angle_weights(alpha)
+        # the suction peak changes as much with a small smoothing as with a larger one (the
+        # nose is where the smoothing moves the points most): only the points as given
+        # measure its share; against another smoothing it is unknown
+        d_cp = (f * np.abs(other.cp_min - cp0) if scale == 1.0 and what.startswith("the points")
+                else np.full_like(cp0, np.nan))
+        return SmoothingTerm(f * np.abs(w_cl) @ np.abs(other.unit_cl - coarse.unit_cl),
+                             f * np.abs(w_cm) @ np.abs(other.unit_cm - coarse.unit_cm),
+                             d_cp, what)
+    nan = np.full(len(alpha), np.nan)
+    return SmoothingTerm(nan, nan, np.full_like(cp0, np.nan), "")
 
 
 # --------------------------------------------------------------------------- centre of pressure
@@ -327,6 +479,66 @@ def result_notes(outlines, panellings, alpha_deg, cl_panels, cm_panels, inputs, 
     return tuple(notes)
 
 
+# --------------------------------------------------------------------------- suction peak
+# The suction peak (each body's lowest Cp, at a node) converges more slowly and less regularly
+# than the integrated coefficients: measured on exact Karman-Trefftz sections at 50 to 800
+# panels (np.polyfit of log error on log count), orders 1.7 to 2.0 on 10-16 % thick sections
+# and an irregular sequence on a 3 %-thick one (tests/test_imperfect_geometry.py). The
+# Richardson estimate takes order CP_ORDER, below those, with Roache's factor 3.
+CP_ORDER = 1.5
+# A suction peak known no better than this fraction of itself is noted, and the cavitation
+# inception speed computed from it is given as a range (conditions/cavitation.py).
+CP_MIN_NOTE_SHARE = PEAK_NOTE_SHARE
+# An estimate above this fraction of the peak itself means the panel counts and the curves the
+# input supports disagree by about as much as the peak: the solutions are outside the
+# asymptotic range in which a Richardson estimate holds (Roache 1998 uses the grid convergence
+# index only there), and no estimate is given (NaN, with a note). Measured: a 2.3 %-thick
+# Karman-Trefftz table of 161 points at 4 deg gave Cp -59 +/- 49 against the exact -165;
+# every estimate below half the peak bracketed the exact error (tests/test_imperfect_geometry.py).
+CP_MIN_UNRESOLVED_SHARE = 0.5
+
+
+def cp_min_panels(fine_cp_min, coarse_cp_min, ratio):
+    """Richardson estimate of the panels' error of each body's lowest Cp.
+
+    Parameters
+    ----------
+    fine_cp_min, coarse_cp_min : ndarray, shape (n_alpha, n_bodies)
+    ratio : float
+        Panel-count ratio of the two solutions (> 1).
+
+    Returns
+    -------
+    ndarray, shape (n_alpha, n_bodies)
+    """
+    diff = np.abs(np.asarray(fine_cp_min, float) - np.asarray(coarse_cp_min, float))
+    return PANEL_SAFETY * diff / (ratio**CP_ORDER - 1.0)
+
+
+def cp_min_notes(alpha_deg, names, cp_min, cp_min_error) -> list[str]:
+    """Sentences for suction peaks whose estimate is above :data:`CP_MIN_NOTE_SHARE`."""
+    out = []
+    cp, err = np.asarray(cp_min, float), np.asarray(cp_min_error, float)
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share = err / np.abs(cp)
+        err = np.where(share > CP_MIN_UNRESOLVED_SHARE, np.nan, err)
+    for i, k in zip(*np.nonzero(~(share <= CP_MIN_NOTE_SHARE))):
+        if not np.isfinite(cp[i, k]):
+            continue
+        if np.isfinite(err[i, k]):
+            out.append(f"alpha {alpha_deg[i]:g}: the suction peak of {names[k]}, Cp "
+                       f"{cp[i, k]:.3g}, is known only +/- {err[i, k]:.2g} "
+                       f"({100 * share[i, k]:.0f} %): more panels or a finer table would "
+                       "narrow it")
+        else:
+            out.append(f"alpha {alpha_deg[i]:g}: the suction peak of {names[k]}, Cp "
+                       f"{cp[i, k]:.3g}, has no error estimate: the panels or the input points "
+                       "do not resolve it (the solutions compared differ by half the peak or "
+                       "more), or a smoothing's share could not be measured against the points "
+                       "as given; the true peak may be far lower")
+    return out
+
+
 # --------------------------------------------------------------------------- third panel count
 # The third count is solved where the two-count estimate can fail: few panels, or a thin body
 # whose nose the panels resolve only at high counts. Measured on the seven exact mapped sections
@@ -350,23 +562,28 @@ def third_panel_count(panellings, alpha_deg, fine):
 
     Returns
     -------
-    (cl, cm) : ndarray each, shape (n_alpha,), or None for given points as panel ends
+    (cl, cm, cp_min) : ndarray each, shapes (n_alpha,), (n_alpha,), (n_alpha, n_bodies); or
+        None for given points as panel ends
     """
+    from panelflow.flow.surface import evaluate
+
     if any(pl.method != "spline" for pl in panellings):
         return None
     third = [respline(pl.outline, max(MIN_PANELS, int(round(THIRD_SHARE * pl.n_panels))))
              for pl in panellings]
-    other = coefficients(factorise(Panels.from_panellings(third)), alpha_deg, fine.chord_line,
-                         fine.reference_point)
-    ratio = fine.panels.n_panels / other.n_panels
+    other = evaluate(factorise(Panels.from_panellings(third)), alpha_deg, fine.chord_line,
+                     fine.reference_point)
+    ratio = fine.panels.n_panels / other.panels.n_panels
     scale = PANEL_SAFETY / (ratio**PANEL_ORDER - 1.0)
     w_cl, w_cm = _angle_weights(alpha_deg)
     return (scale * np.abs(w_cl) @ np.abs(fine.unit_cl - other.unit_cl),
-            scale * np.abs(w_cm) @ np.abs(fine.unit_cm - other.unit_cm))
+            scale * np.abs(w_cm) @ np.abs(fine.unit_cm - other.unit_cm),
+            cp_min_panels(fine.cp_min, other.cp_min, ratio))
 
 
 def supplement(outlines, panellings, halves, fine, coarse, cl_panels, cm_panels,
-               chord_line=None, reference_point=None):
+               chord_line=None, reference_point=None, coarse_cp_min=None, cp_panels=None,
+               smoothing=None):
     """The additions to the two-panel-count estimate, and the notes for the result.
 
     Parameters
@@ -382,6 +599,12 @@ def supplement(outlines, panellings, halves, fine, coarse, cl_panels, cm_panels,
         The two-panel-count estimate.
     chord_line, reference_point : optional
         As the user gave them to the analysis (None: the defaults).
+    coarse_cp_min : ndarray, shape (n_alpha, n_bodies), optional
+        Each body's lowest Cp on ``halves``; with it the suction peak gets its estimate too.
+    cp_panels : ndarray, shape (n_alpha, n_bodies), optional
+        The suction peak's two-panel-count estimate (:func:`cp_min_panels`).
+    smoothing : (given outlines, distance), optional
+        The bodies before smoothing and the smoothing distance, when they were smoothed.
 
     Returns
     -------
@@ -390,18 +613,43 @@ def supplement(outlines, panellings, halves, fine, coarse, cl_panels, cm_panels,
     alpha = fine.alpha_deg
     third = third_panel_count(panellings, alpha, fine) if needs_third_count(panellings) else None
     zero = np.zeros(len(alpha))
+    zero_cp = np.zeros_like(np.asarray(fine.cp_min, float))
+    cp_panels = zero_cp if cp_panels is None else np.asarray(cp_panels, float)
     p_cl, p_cm = ((zero, zero) if third is None else
                   (np.maximum(third[0] - cl_panels, 0.0), np.maximum(third[1] - cm_panels, 0.0)))
+    p_cp = zero_cp if third is None else np.maximum(third[2] - cp_panels, 0.0)
     if all(o.exact for o in outlines):  # points from the defining equations: no input share
         qualities = None
-        inputs = InputTerm(zero, zero, np.zeros(2), np.zeros(4), 0)
+        inputs = InputTerm(zero, zero, np.zeros(2), np.zeros(4), 0, zero_cp)
     else:
         qualities = [inspect_input(o) for o in outlines]
         scatters = [q.scatter if q.scatter_is_noise else 0.0 for q in qualities]
         inputs = input_resolution_error(outlines, halves, alpha, coarse, chord_line,
-                                        reference_point, scatters)
-    terms = ErrorTerms(p_cl + inputs.cl, p_cm + inputs.cm, p_cl, p_cm, inputs)
-    _, cp_reasons = centre_of_pressure(fine, cl_panels + terms.cl, cm_panels + terms.cm)
+                                        reference_point, scatters, coarse_cp_min)
+    smooth = None
+    if smoothing is not None and coarse_cp_min is not None:
+        given, distance = smoothing
+        smooth = smoothing_error(outlines, given, distance, halves, alpha, coarse, coarse_cp_min,
+                                 chord_line, reference_point)
+    s_cl, s_cm, s_cp = ((zero, zero, zero_cp) if smooth is None
+                        else (smooth.cl, smooth.cm, smooth.cp_min))
+    in_cp = zero_cp if inputs.cp_min is None else inputs.cp_min
+    terms = ErrorTerms(p_cl + inputs.cl + s_cl, p_cm + inputs.cm + s_cm, p_cl, p_cm, inputs,
+                       p_cp + in_cp + s_cp, smooth)
+    _, cp_reasons = centre_of_pressure(fine, np.nan_to_num(cl_panels + terms.cl, nan=np.inf),
+                                       np.nan_to_num(cm_panels + terms.cm, nan=np.inf))
     notes = result_notes(outlines, panellings, alpha, cl_panels + p_cl, cm_panels + p_cm,
                          inputs, cp_reasons, qualities)
+    if smooth is not None:
+        if smooth.reference:
+            notes += (f"the smoothing's share of the error estimate: up to {np.max(smooth.cl):.2g} "
+                      f"in cl, {np.max(smooth.cm):.2g} in cm (the smoothed curve against "
+                      f"{smooth.reference}, counted {SMOOTHING_FACTOR:g} times)",)
+        else:
+            notes += ("the smoothing's share of the error could not be measured (neither the "
+                      "points as given nor a smoothing within a smaller distance make a usable "
+                      "outline): no error estimate is given",)
+    if coarse_cp_min is not None:
+        names = [o.name for o in outlines]
+        notes += tuple(cp_min_notes(alpha, names, fine.cp_min, cp_panels + terms.cp_min))
     return terms, notes

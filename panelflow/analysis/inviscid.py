@@ -26,7 +26,8 @@ import numpy as np
 from dataclasses import replace
 
 from panelflow import threads
-from panelflow.analysis.accuracy import ErrorTerms, centre_of_pressure, supplement
+from panelflow.analysis.accuracy import (CP_MIN_UNRESOLVED_SHARE, ErrorTerms,
+                                         centre_of_pressure, cp_min_panels, supplement)
 from panelflow.errors import InputError
 from panelflow.flow import images
 from panelflow.flow.solver import System, factorise
@@ -87,6 +88,7 @@ class BodyAngleResult:
     x: np.ndarray = field(repr=False)
     y: np.ndarray = field(repr=False)
     cp: np.ndarray = field(repr=False)
+    cp_min_error_estimate: float = float("nan")
 
 
 def _error(weights, fine_units, coarse_units, ratio):
@@ -125,6 +127,12 @@ class Analysis:
         Plain sentences on what limits the result (see :func:`accuracy.result_notes`).
     x_center_of_pressure : ndarray
         Centre of pressure per angle, NaN where the normal force cannot place it.
+    coarse_cp_min : ndarray, shape (n_alpha, n_bodies), or None
+        Each body's lowest Cp at about half the panels.
+    cp_min_error_estimate : ndarray, shape (n_alpha, n_bodies)
+        Error estimate of each body's lowest Cp (the suction peak): the panels' share from
+        ``coarse_cp_min`` (:func:`accuracy.cp_min_panels`) plus ``extra_error.cp_min`` (third
+        panel count, input points, smoothing). NaN without an estimate.
     """
 
     outlines: tuple
@@ -135,7 +143,9 @@ class Analysis:
     notes: tuple = ()
     cl_error_estimate: np.ndarray | None = field(default=None, repr=False)
     cm_error_estimate: np.ndarray | None = field(default=None, repr=False)
+    coarse_cp_min: np.ndarray | None = field(default=None, repr=False)
     x_center_of_pressure: np.ndarray = field(init=False, repr=False)
+    cp_min_error_estimate: np.ndarray = field(init=False, repr=False)
 
     def __post_init__(self):
         cl_err, cm_err = self.cl_error_estimate, self.cm_error_estimate
@@ -156,6 +166,16 @@ class Analysis:
             # symmetric section 2.3e-10 at 400 panels, where a fixed 1e-10 floor failed)
             floor = max(ROUND_OFF, ROUND_OFF_PER_PANEL * self.fine.panels.n_panels)
             cl_err, cm_err = np.maximum(cl_err, floor), np.maximum(cm_err, floor)
+        cp_err = np.full(np.shape(self.fine.cp_min), np.nan)
+        if self.coarse_cp_min is not None and self.coarse is not None:
+            ratio = self.fine.panels.n_panels / self.coarse.n_panels
+            cp_err = cp_min_panels(self.fine.cp_min, self.coarse_cp_min, ratio)
+            if self.extra_error is not None and self.extra_error.cp_min is not None:
+                cp_err = cp_err + self.extra_error.cp_min
+            cp_err = np.maximum(cp_err, max(ROUND_OFF, ROUND_OFF_PER_PANEL * self.n_panels))
+            unresolved = cp_err > CP_MIN_UNRESOLVED_SHARE * np.abs(self.fine.cp_min)
+            cp_err = np.where(unresolved, np.nan, cp_err)
+        object.__setattr__(self, "cp_min_error_estimate", np.asarray(cp_err, float))
         object.__setattr__(self, "cl_error_estimate", np.asarray(cl_err, float))
         object.__setattr__(self, "cm_error_estimate", np.asarray(cm_err, float))
         x_cp, _ = centre_of_pressure(self.fine, np.nan_to_num(cl_err), np.nan_to_num(cm_err))
@@ -231,7 +251,8 @@ class Analysis:
                 xy_cp_min=(float(p.nodes[j, 0]), float(p.nodes[j, 1])),
                 stagnation_xy=(float(zs.real), float(zs.imag)),
                 x_stagnation=float(f.x_stagnation[i, k]), cp_base=float(f.cp_base[i, k]),
-                x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes]))
+                x=xy[:, 0], y=xy[:, 1], cp=f.cp[i, nodes],
+                cp_min_error_estimate=float(self.cp_min_error_estimate[i, k])))
         return AngleResult(float(f.alpha_deg[i]), float(f.cl[i]), float(f.cl_pressure[i]),
                            float(f.cl_circulation[i]), float(f.cd_pressure[i]), float(f.cm[i]),
                            float(cl_err), float(cm_err), float(self.x_center_of_pressure[i]),
@@ -287,7 +308,7 @@ def build(outlines, n_panels: int | None = DEFAULT_PANELS, error_estimate: bool 
 
 @threads.blas_single
 def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, reference_point=None,
-            error_estimate: bool = True, chord_line=None) -> Analysis:
+            error_estimate: bool = True, chord_line=None, smoothing=None) -> Analysis:
     """Solve the flow around one or more bodies at any number of angles of attack.
 
     Parameters
@@ -306,6 +327,10 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     chord_line : (leading_edge, trailing_edge), optional
         Reference chord line; default the main body's (a deflected flap's section uses the
         undeflected chord). The default reference point is its quarter chord.
+    smoothing : (given outlines, distance), optional
+        When ``outlines`` are smoothing curves (:func:`panelflow.geometry.quality.smoothed`):
+        the bodies before smoothing and the distance, for the smoothing's share of the error
+        estimate (:func:`panelflow.analysis.accuracy.smoothing_error`).
 
     Returns
     -------
@@ -319,11 +344,16 @@ def analyse(outlines, alpha_deg, n_panels: int | None = DEFAULT_PANELS, referenc
     if not error_estimate:
         return Analysis(outlines, panellings, fine, None)
     halves = [pl.coarsened() for pl in panellings]
-    coarse = coefficients(factorise(Panels.from_panellings(halves)), alpha, chord, ref)
-    two = Analysis(outlines, panellings, fine, coarse)
+    coarse_system = factorise(Panels.from_panellings(halves))
+    coarse = coefficients(coarse_system, alpha, chord, ref)
+    coarse_cp_min = evaluate(coarse_system, alpha, chord, ref).cp_min
+    two = Analysis(outlines, panellings, fine, coarse, coarse_cp_min=coarse_cp_min)
+    cp_panels = cp_min_panels(fine.cp_min, coarse_cp_min, two.n_panels / coarse.n_panels)
     extra, notes = supplement(outlines, panellings, halves, fine, coarse, two.cl_error_estimate,
-                              two.cm_error_estimate, chord_line, reference_point)
-    return Analysis(outlines, panellings, fine, coarse, extra, notes)
+                              two.cm_error_estimate, chord_line, reference_point, coarse_cp_min,
+                              cp_panels, smoothing)
+    return Analysis(outlines, panellings, fine, coarse, extra, notes,
+                    coarse_cp_min=coarse_cp_min)
 
 
 def _richardson(fine, coarse, ratio):
@@ -389,8 +419,11 @@ def analyse_near_plane(outlines, alpha_deg, boundary, n_panels: int | None = DEF
                               np.array([s.cl_pressure[0] for s in cs]),
                               np.array([s.cd_pressure[0] for s in cs]), cm_c,
                               np.full(2, np.nan), np.full(4, np.nan))
+        coarse_cp_min = np.array([s.cp_min[0] for s in cs])
+    else:
+        coarse_cp_min = None
     return Analysis(outlines, panellings, fine, coarse, cl_error_estimate=cl_err,
-                    cm_error_estimate=cm_err), gaps
+                    cm_error_estimate=cm_err, coarse_cp_min=coarse_cp_min), gaps
 
 
 def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANELS,

@@ -183,6 +183,13 @@ class Result:
         return self.inviscid.cl_error_estimate
 
     @property
+    def cp_min_error_estimate(self) -> np.ndarray:
+        """Error estimate of each body's lowest Cp, shape (n_alpha, n_bodies); NaN without one."""
+        est = getattr(self.inviscid, "cp_min_error_estimate", None)
+        return (np.full(np.shape(self.fine.cp_min), np.nan) if est is None
+                else np.asarray(est))
+
+    @property
     def cm_error_estimate(self) -> np.ndarray:
         return self.inviscid.cm_error_estimate
 
@@ -234,7 +241,10 @@ def margin_columns(result: Result) -> dict:
       ``cavitation_margin`` (cavitation number plus the lowest Cp: negative when cavitating);
     * plane: ``plane_clearance`` (outline units), ``cl_free_space``, ``cm_free_space``;
     * viscous analysis: see :data:`VISCOUS_COLUMNS` (NaN where the iteration did not converge,
-      ``viscous_converged`` 1 or 0).
+      ``viscous_converged`` 1 or 0);
+    * last, with an error estimate: ``cp_min_error_estimate`` (the main body's suction peak, as
+      ``cp_min``), and with cavitation ``inception_speed_low`` and ``inception_speed_high`` (the
+      inception speed's range over that estimate).
     """
     out = {}
     c = result.compressibility
@@ -257,6 +267,15 @@ def margin_columns(result: Result) -> dict:
         out.update({column: v.column(field_) for column, field_ in VISCOUS_COLUMNS.items()})
         out["viscous_converged"] = v.converged.astype(float)
         out["viscous_residual"] = v.column("residual")
+    # the suction peak's estimate and the inception speed's range over it, after the columns
+    # above so that their order is kept
+    est = getattr(result.inviscid, "cp_min_error_estimate", None)
+    if est is not None and np.any(np.isfinite(est)):
+        out["cp_min_error_estimate"] = np.asarray(est)[:, 0]  # the main body's, as cp_min
+    v = result.cavitation
+    if v is not None and np.any(np.isfinite(v.section_inception_speed_low)):
+        out["inception_speed_low"] = np.asarray(v.section_inception_speed_low)
+        out["inception_speed_high"] = np.asarray(v.section_inception_speed_high)
     return out
 
 

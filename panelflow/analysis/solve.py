@@ -33,17 +33,26 @@ _CL_TOLERANCE = 1e-10
 
 
 def _geometry(problem: Problem):
-    """(bodies, chord line or None, flapped section or None, smoothing sentences)."""
-    bodies, smoothing = problem.bodies, ()
+    """(bodies, chord line or None, flapped section or None, smoothing sentences, the bodies
+    before smoothing as solved (flap applied) or None)."""
+    bodies, smoothing, given = problem.bodies, (), None
     if problem.smoothing is not None:
         from panelflow.geometry.quality import smoothed
 
         fits = [smoothed(o, problem.smoothing) for o in bodies]
-        bodies, smoothing = tuple(f.outline for f in fits), tuple(f.describe() for f in fits)
+        given, bodies = bodies, tuple(f.outline for f in fits)
+        smoothing = tuple(f.describe() for f in fits)
     if problem.flap is None:
-        return bodies, None, None, smoothing
+        return bodies, None, None, smoothing, given
     fs = problem.flap.apply(bodies[0])
-    return (*fs.outlines, *bodies[1:]), fs.chord_line, fs, smoothing
+    if given is not None:  # the comparison bodies get the same flap
+        from panelflow.errors import PanelflowError
+
+        try:
+            given = (*problem.flap.apply(given[0]).outlines, *given[1:])
+        except PanelflowError:
+            given = None
+    return (*fs.outlines, *bodies[1:]), fs.chord_line, fs, smoothing, given
 
 
 def _near_plane(problem, bodies, alpha, chord_line, error_estimate):
@@ -189,7 +198,9 @@ def model_notes(result: Result) -> tuple:
 
     Every body counts: a suction peak below Cp = -3 on any body is named with the body.
     """
-    notes = []
+    from panelflow.geometry.check import reversed_note
+
+    notes = [n for n in map(reversed_note, result.outlines) if n]
     names = [o.name for o in result.outlines]
     for name in (o.name for o in result.outlines if o.kind == SMOOTH):
         notes.append(
@@ -215,6 +226,8 @@ def model_notes(result: Result) -> tuple:
                 from panelflow.viscous.section import unconverged_message
 
                 notes.append(unconverged_message(r))
+    if result.cavitation is not None:
+        notes.extend(result.cavitation.notes)
     if result.cavitation is not None and np.any(result.cavitation.cavitating):
         a = result.alpha_deg[np.asarray(result.cavitation.cavitating)]
         notes.append(f"cavitation expected at alpha {', '.join(f'{v:g}' for v in a)} deg at "
@@ -246,7 +259,7 @@ def solve(problem: Problem) -> Result:
     if not isinstance(problem, Problem):
         raise InputError(f"solve takes a Problem, got {type(problem).__name__}")
     op = problem.operating
-    bodies, chord_line, flapped, smoothing = _geometry(problem)
+    bodies, chord_line, flapped, smoothing, given = _geometry(problem)
     alpha = (np.array([_angle_for_lift(problem, bodies, chord_line)]) if op.target_cl is not None
              else np.asarray(op.alpha_deg, float))
     if op.target_cl is not None and op.viscous:
@@ -255,7 +268,8 @@ def solve(problem: Problem) -> Result:
     if op.plane is None:
         inviscid = analyse(bodies, alpha, n_panels=problem.panels,
                            reference_point=problem.reference_point,
-                           error_estimate=problem.error_estimate, chord_line=chord_line)
+                           error_estimate=problem.error_estimate, chord_line=chord_line,
+                           smoothing=None if given is None else (given, problem.smoothing))
     else:
         from panelflow.flow.images import CAUTIONS
 

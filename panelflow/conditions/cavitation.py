@@ -34,6 +34,9 @@ from panelflow.errors import InputError
 
 STANDARD_GRAVITY = 9.80665  # m/s^2, 3rd CGPM (1901), ISO 80000-3
 STANDARD_ATMOSPHERE = 101325.0  # Pa, the standard atmosphere at sea level (ISO 2533)
+# A suction peak known no better than this fraction of itself gets its inception speed as a
+# range in the notes (the analysis notes the peak itself at the same share).
+PEAK_NOTE_SHARE = 0.05
 
 CAUTIONS = (
     ("Cavitation inception is the inviscid first estimate -Cp_min >= sigma: real inception also "
@@ -159,6 +162,15 @@ class CavitationResult:
     cavitating : (n_alpha,) bool, True where ``-section_cp_min >= sigma``; all False when no
         speed is given (there is nothing to compare; read ``section_inception_speed``).
     cautions : tuple of str
+    cp_min_error_estimate : (n_alpha, n_bodies) error estimate of each body's lowest Cp (NaN
+        when the result carries none).
+    section_inception_speed_low, section_inception_speed_high : (n_alpha,) the range of the
+        inception speed over ``cp_min -/+ cp_min_error_estimate`` (lowest of the bodies at each
+        end; NaN without an estimate, ``inf`` where the peak may not be below zero at all).
+    notes : tuple of str
+        Angles whose suction peak is known no better than ``PEAK_NOTE_SHARE`` of itself (the
+        inception speed as a range), and angles at which cavitation is possible within the
+        estimate though not expected at the peak as computed.
     """
 
     alpha_deg: np.ndarray
@@ -176,8 +188,18 @@ class CavitationResult:
     margin: np.ndarray = field(repr=False)
     cavitating: np.ndarray
     cautions: tuple = field(default=CAUTIONS, repr=False)
+    cp_min_error_estimate: np.ndarray | None = field(default=None, repr=False)
+    section_inception_speed_low: np.ndarray | None = field(default=None, repr=False)
+    section_inception_speed_high: np.ndarray | None = field(default=None, repr=False)
+    notes: tuple = ()
 
     def __post_init__(self):
+        nan = np.full(np.shape(self.cp_min), np.nan)
+        for name, value in (("cp_min_error_estimate", nan),
+                            ("section_inception_speed_low", nan[:, 0] if nan.ndim == 2 else nan),
+                            ("section_inception_speed_high", nan[:, 0] if nan.ndim == 2 else nan)):
+            if getattr(self, name) is None:
+                object.__setattr__(self, name, value.copy())
         for value in vars(self).values():
             if isinstance(value, np.ndarray):
                 value.setflags(write=False)
@@ -230,6 +252,13 @@ def assess(result, depth, density, vapour_pressure, speed=None,
             raise InputError(f"{name} must be a single number here")
     v_i = inception_speed(cp, *args)
     section_cp = cp.min(axis=1)
+    err = getattr(result, "cp_min_error_estimate", None)
+    err = np.full(cp.shape, np.nan) if err is None else np.asarray(err, float).reshape(cp.shape)
+    known = np.all(np.isfinite(err), axis=1)
+    with np.errstate(invalid="ignore"):
+        low = inception_speed(np.where(np.isfinite(err), cp - err, cp), *args).min(axis=1)
+        high = inception_speed(np.where(np.isfinite(err), cp + err, cp), *args).min(axis=1)
+    low, high = np.where(known, low, np.nan), np.where(known, high, np.nan)
     if speed is None:
         v, sigma = float("nan"), float("nan")
         margin = np.full(len(alpha), np.nan)
@@ -239,11 +268,42 @@ def assess(result, depth, density, vapour_pressure, speed=None,
         sigma = float(cavitation_number(v, *args))
         margin = sigma + section_cp
         cavitating = -section_cp >= sigma
+    notes = _range_notes(alpha, names, cp, err, v_i.min(axis=1), low, high, sigma, cavitating)
     return CavitationResult(
         alpha_deg=alpha, body_names=names, depth=float(depth), density=float(density),
         vapour_pressure=float(vapour_pressure), atmospheric_pressure=float(atmospheric_pressure),
         speed=v, sigma=sigma, cp_min=cp.copy(), section_cp_min=section_cp, inception_speed=v_i,
-        section_inception_speed=v_i.min(axis=1), margin=margin, cavitating=cavitating)
+        section_inception_speed=v_i.min(axis=1), margin=margin, cavitating=cavitating,
+        cp_min_error_estimate=err, section_inception_speed_low=low,
+        section_inception_speed_high=high, notes=tuple(notes))
+
+
+def _range_notes(alpha, names, cp, err, v_i, low, high, sigma, cavitating) -> list[str]:
+    """Sentences on inception speeds that rest on an uncertain suction peak."""
+    out = []
+    k = np.argmin(cp, axis=1)
+    rows = np.arange(len(alpha))
+    peak, e = cp[rows, k], err[rows, k]
+    with np.errstate(invalid="ignore", divide="ignore"):
+        share = e / np.abs(peak)
+    for i in np.flatnonzero(~(share <= PEAK_NOTE_SHARE)):
+        if not np.isfinite(e[i]):
+            out.append(f"alpha {alpha[i]:g}: the inception speed {v_i[i]:.3g} m/s rests on a "
+                       f"suction peak of {names[k[i]]} (Cp {peak[i]:.3g}) without an error "
+                       "estimate: treat it as unchecked")
+            continue
+        out.append(f"alpha {alpha[i]:g}: the suction peak of {names[k[i]]}, Cp {peak[i]:.3g} "
+                   f"+/- {e[i]:.2g}, is known only to {100 * share[i]:.0f} %: the inception speed "
+                   + (f"lies between {low[i]:.3g} and {high[i]:.3g} m/s" if np.isfinite(high[i])
+                      else f"is {low[i]:.3g} m/s or more")
+                   + f" (computed {v_i[i]:.3g}); use the lower")
+    if np.isfinite(sigma):
+        with np.errstate(invalid="ignore"):
+            maybe = ~cavitating & (-(cp - np.nan_to_num(err)).min(axis=1) >= sigma)
+        for i in np.flatnonzero(maybe):
+            out.append(f"alpha {alpha[i]:g}: cavitation possible within the suction peak's error "
+                       f"estimate (inception from {low[i]:.3g} m/s)")
+    return out
 
 
 def assess_in(result, depth, fluid, speed=None, gravity=STANDARD_GRAVITY) -> CavitationResult:

@@ -21,7 +21,7 @@ from shapely.validation import explain_validity
 
 from panelflow.errors import GeometryError
 from panelflow.geometry import quality
-from panelflow.geometry.outline import MIN_POINTS, Outline
+from panelflow.geometry.outline import MIN_POINTS, SMOOTH, Outline
 from panelflow.geometry.panelling import respline
 
 
@@ -64,7 +64,8 @@ class OutlineReport:
     panels : int
         Panel count the panelled geometry was checked at (and half of it).
     warnings : tuple of str
-        Doubtful (probably mistyped) points with their input lines, and panel spacing notes.
+        An outline drawn backwards (:func:`reversed_note`), doubtful (probably mistyped) points
+        with their input lines, and panel spacing notes.
     """
 
     name: str
@@ -94,6 +95,31 @@ class OutlineReport:
     @property
     def ok(self) -> bool:
         return not self.problems
+
+
+# A chord line turned more than this from the x-axis (the freestream's direction at zero angle)
+# puts the trailing edge upstream of the leading edge: the outline is drawn backwards. A user
+# may mean it (a section run tail-first), so this is a warning, not a refusal.
+REVERSED_BEYOND_DEG = 90.0
+
+
+def reversed_note(outline: Outline) -> str | None:
+    """A warning sentence when the outline's trailing edge lies upstream of its leading edge.
+
+    A body without a trailing edge never is (its leading edge is the upstream end of its
+    longest extent).
+
+    Returns
+    -------
+    str or None
+    """
+    if outline.kind == SMOOTH or abs(outline.chord_angle_deg) <= REVERSED_BEYOND_DEG:
+        return None
+    return (f"{outline.name}: the trailing edge lies upstream of the leading edge (chord-line "
+            f"incidence {outline.chord_angle_deg:.1f} deg, beyond +/-{REVERSED_BEYOND_DEG:g}): "
+            "the outline is drawn backwards, so the flow meets the trailing edge first and the "
+            "results are those of the section run tail-first; if that is not meant, mirror the "
+            "x coordinates (x to -x)")
 
 
 def _polygon(outline: Outline) -> Polygon:
@@ -143,7 +169,8 @@ def inspect(outline: Outline, n_panels: int = 200) -> OutlineReport:
     te = outline.trailing_edge
     area = abs(outline.area)
     thick = _thickness(outline) if not problems else float("nan")
-    extra = {}
+    backwards = reversed_note(outline)
+    extra = {} if backwards is None else {"warnings": (backwards,)}
     if not problems:
         problems += quality.thin_problems([outline])
     if not problems:
@@ -163,7 +190,8 @@ def inspect(outline: Outline, n_panels: int = 200) -> OutlineReport:
                      scatter_cause=q.scatter_cause, rounding=q.rounding,
                      largest_spacing=q.largest_spacing, nose_spacing=q.nose_spacing,
                      nose_radius=q.nose_radius, largest_turn_deg=q.largest_turn_deg,
-                     panels=n_panels, warnings=tuple(dict.fromkeys(warnings)))
+                     panels=n_panels, warnings=tuple(dict.fromkeys(
+                         ([backwards] if backwards else []) + warnings)))
     return OutlineReport(outline.name, outline.source, len(outline.points) - 1, te.kind, te.gap,
                          te.included_angle_deg, tuple(map(float, outline.leading_edge)),
                          tuple(map(float, te.point)), outline.chord, outline.chord_angle_deg,

@@ -33,7 +33,7 @@ from shapely.geometry import LinearRing
 
 from panelflow.errors import GeometryError
 from panelflow.geometry import curve
-from panelflow.geometry.outline import SMOOTH, Outline
+from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline
 
 # --------------------------------------------------------------------------- stated limits
 # A point is doubtful (probably mistyped) when its distance from the curve through its
@@ -298,6 +298,9 @@ class Smoothing:
         Row of ``outline.points`` where that largest move happens.
     line : int or None
         Input line of that point, when known.
+    edge_found : bool
+        The body was read without a trailing edge and the smoothed points show the sharp edge
+        at the input's first point that the scatter had hidden (see :func:`smoothed`).
     """
 
     outline: Outline
@@ -305,6 +308,7 @@ class Smoothing:
     largest_deviation: float
     index: int
     line: int | None
+    edge_found: bool = False
 
     def describe(self) -> str:
         """One sentence for reports."""
@@ -312,7 +316,15 @@ class Smoothing:
         x, y = self.outline.points[self.index]
         return (f"{self.outline.name}: smoothed within {self.tolerance:.3g}; the largest move is "
                 f"{self.largest_deviation:.3g} ({100 * self.largest_deviation / self.outline.chord:.3g}"
-                f" % of chord) at {where}, now ({x:.6g}, {y:.6g}); leading and trailing edges kept")
+                f" % of chord) at {where}, now ({x:.6g}, {y:.6g}); "
+                + ("the sharp trailing edge at the input's first point, hidden by the "
+                   "scatter of the points, found again on the smoothed curve and kept"
+                   if self.edge_found else self._edges()))
+
+    def _edges(self) -> str:
+        if self.outline.kind == SMOOTH:
+            return "leading edge kept; no trailing edge (a rounded body)"
+        return f"leading edge and {self.outline.kind} trailing edge kept"
 
 
 def _smoothing_fit(t, pts, weights, lam):
@@ -321,36 +333,14 @@ def _smoothing_fit(t, pts, weights, lam):
     return make_smoothing_spline(t, pts, w=weights, lam=lam)(t)
 
 
-def smoothed(outline: Outline, tolerance: float) -> Smoothing:
-    """Fit a smoothing curve that stays within ``tolerance`` of every input point.
+# After smoothing, the trailing edge must be found again where it was, of the same kind: the
+# points are re-read as a fresh input would be (Outline.from_points) and the edge point may move
+# by no more than this fraction of the chord (round-off of the held points only).
+EDGE_KEPT = 1e-9
 
-    The cubic smoothing spline (Reinsch, Numerische Mathematik 10, 1967; the penalised fit
-    ``sum w |p - f|^2 + lam * integral |f''|^2`` of scipy.interpolate.make_smoothing_spline) is
-    fitted to x and y against the chord-length parameter, with the trailing-edge points and the
-    point at the leading edge held (weights a million times the others). The smoothing weight
-    ``lam`` is raised, by bisection on its logarithm, as far as the largest distance of a point
-    from its input position allows.
 
-    Parameters
-    ----------
-    outline : Outline
-    tolerance : float
-        Largest distance a point may move, in the outline's units.
-
-    Returns
-    -------
-    Smoothing
-
-    Raises
-    ------
-    GeometryError
-        A tolerance that is not a positive number, too few points, or a smoothed outline that is
-        no longer a simple loop.
-    """
-    tol = float(tolerance)
-    if not np.isfinite(tol) or tol <= 0.0:
-        raise GeometryError(f"{outline.label}: the smoothing tolerance must be a positive "
-                            f"length, got {tolerance!r}")
+def _fit_within(outline: Outline, tol: float):
+    """The smoothed points of ``outline`` (ends and nose held), largest move, its index."""
     pts, closed = _chain(outline)
     n = len(pts)
     if n < 8:
@@ -374,15 +364,15 @@ def smoothed(outline: Outline, tolerance: float) -> Smoothing:
         return q, float(np.max(np.hypot(*(q - pts).T)))
 
     lo, hi = -16.0, 2.0  # lam relative to span^3: from interpolation to a near straight line
-    best, dev = pts.copy(), 0.0
+    best = pts.copy()
     q, d = fit(lo)
     if d <= tol:
-        best, dev = q, d
+        best = q
         for _ in range(40):
             mid = 0.5 * (lo + hi)
             q, d = fit(mid)
             if d <= tol:
-                lo, best, dev = mid, q, d
+                lo, best = mid, q
             else:
                 hi = mid
             if hi - lo < 0.01:
@@ -393,10 +383,7 @@ def smoothed(outline: Outline, tolerance: float) -> Smoothing:
     dist = np.hypot(*(best - pts).T)
     i = int(np.argmax(dist))
     loop = np.vstack([best, best[:1]]) if closed else best
-    if outline.kind == SMOOTH:
-        index_map = np.r_[np.arange(n), 0]
-    else:
-        index_map = np.arange(n)
+    index_map = np.r_[np.arange(n), 0] if closed else np.arange(n)
     lines = None if outline.lines is None else outline.lines[index_map]
     new = Outline(outline.name, loop, outline.kind, outline.source, lines)
     ring = LinearRing(new.polygon)
@@ -404,8 +391,102 @@ def smoothed(outline: Outline, tolerance: float) -> Smoothing:
         raise GeometryError(f"{outline.label}: the outline smoothed within {tol:g} crosses "
                             "itself (the points of the two surfaces lie closer together than "
                             "that, or cross already)")
-    return Smoothing(new, tol, float(dist[i]), i,
-                     None if outline.lines is None else int(outline.lines[i]))
+    return new, float(dist[i]), i
+
+
+def _reread(outline: Outline) -> Outline | None:
+    """The outline's points read as a fresh input would be, or None where they are no outline."""
+    try:
+        return Outline.from_points(outline.points, outline.name, outline.source,
+                                   starts_at_trailing_edge=True, lines=outline.lines)
+    except GeometryError:
+        return None
+
+
+def _edge_kept(before: Outline, after: Outline) -> bool:
+    """The smoothed points still show the same kind of trailing edge at the same place."""
+    again = _reread(after)
+    if again is None or again.kind != before.kind:
+        return False
+    if before.kind == SMOOTH:
+        return True
+    move = np.hypot(*(again.trailing_edge.point - before.trailing_edge.point))
+    return bool(move <= EDGE_KEPT * before.chord)
+
+
+def _opened_at_input_start(outline: Outline) -> Outline | None:
+    """A body read without a trailing edge, opened as a sharp-edged chain at the input's first
+    point (a coordinate table starts at its trailing edge), or None when that is not known."""
+    if outline.lines is None:
+        return None
+    ring = np.asarray(outline.points[:-1], float)
+    start = int(np.argmin(outline.lines[:-1]))
+    order = np.r_[np.roll(np.arange(len(ring)), -start), start]  # counter-clockwise, as given
+    try:
+        return Outline(outline.name, ring[order], SHARP, outline.source,
+                       outline.lines[:-1][order])
+    except GeometryError:
+        return None
+
+
+def smoothed(outline: Outline, tolerance: float) -> Smoothing:
+    """Fit a smoothing curve that stays within ``tolerance`` of every input point.
+
+    The cubic smoothing spline (Reinsch, Numerische Mathematik 10, 1967; the penalised fit
+    ``sum w |p - f|^2 + lam * integral |f''|^2`` of scipy.interpolate.make_smoothing_spline) is
+    fitted to x and y against the chord-length parameter, with the trailing-edge points and the
+    point at the leading edge held (weights a million times the others). The smoothing weight
+    ``lam`` is raised, by bisection on its logarithm, as far as the largest distance of a point
+    from its input position allows.
+
+    The trailing edge keeps its kind and place. The smoothed points are read again as a fresh
+    input would be; a sharp or blunt edge that would no longer be found there (rounded, or
+    closed) is refused. A body read without a trailing edge whose points scatter so much that
+    the corner at the input's first point was hidden is smoothed with that point held as a
+    sharp edge; where the smoothed points then show the corner, the edge is taken
+    (:attr:`Smoothing.edge_found`), otherwise the body is smoothed round its closed loop.
+
+    Parameters
+    ----------
+    outline : Outline
+    tolerance : float
+        Largest distance a point may move, in the outline's units.
+
+    Returns
+    -------
+    Smoothing
+
+    Raises
+    ------
+    GeometryError
+        A tolerance that is not a positive number, too few points, a smoothed outline that is
+        no longer a simple loop, or one on which the trailing edge would be rounded or closed.
+    """
+    tol = float(tolerance)
+    if not np.isfinite(tol) or tol <= 0.0:
+        raise GeometryError(f"{outline.label}: the smoothing tolerance must be a positive "
+                            f"length, got {tolerance!r}")
+    if outline.kind == SMOOTH:
+        opened = _opened_at_input_start(outline)
+        if opened is not None:
+            try:
+                new, dev, i = _fit_within(opened, tol)
+            except GeometryError:
+                new = None
+            again = None if new is None else _reread(new)
+            if (again is not None and again.kind == SHARP and np.hypot(
+                    *(again.trailing_edge.point - opened.trailing_edge.point))
+                    <= EDGE_KEPT * opened.chord):
+                return Smoothing(new, tol, dev, i,
+                                 None if new.lines is None else int(new.lines[i]), True)
+    new, dev, i = _fit_within(outline, tol)
+    if not _edge_kept(outline, new):
+        what = {SHARP: "sharp", BLUNT: "blunt"}.get(outline.kind, "no")
+        raise GeometryError(
+            f"{outline.label}: smoothing within {tol:g} would round or close the {what} "
+            "trailing edge (the smoothed points no longer show it where it was); try a "
+            f"smaller distance than {tol:g}")
+    return Smoothing(new, tol, dev, i, None if outline.lines is None else int(outline.lines[i]))
 
 
 def scatter(outline: Outline) -> float:
