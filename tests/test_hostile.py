@@ -91,12 +91,15 @@ def test_trial_refusals(argv, fragment, here, capsys):
     assert out == "" and not (here / "r.json").exists()
 
 
-@pytest.mark.parametrize("extra, fragment", [
-    (("--speed", "1e300"), "speed (m/s)"),  # once OverflowError
-    (("--speed", "8", "--chord", "1e300"), "chord (m)"),  # once a JSON ValueError on nan
+@pytest.mark.parametrize("fluid, extra, fragment", [
+    ("sea-water", ("--speed", "1e300"), "speed (m/s)"),  # once OverflowError
+    ("sea-water", ("--speed", "8", "--chord", "1e300"), "chord (m)"),  # once a JSON nan error
+    # once 90 kN/m from Bernoulli at Mach 1.2, and Mach 0.44 without a word
+    ("air", ("--speed", "400", "--chord", "0.2"), "Mach 1.18"),
+    ("air", ("--speed", "150", "--chord", "0.2"), "give --mach 0.44"),
 ])
-def test_trial_load_refusals(extra, fragment, here, capsys):
-    refused(capsys, "loads", str(FOIL), "--alpha", "4", "--fluid", "sea-water", *extra,
+def test_trial_load_refusals(fluid, extra, fragment, here, capsys):
+    refused(capsys, "loads", str(FOIL), "--alpha", "4", "--fluid", fluid, *extra,
             "-o", "l.json", fragment=fragment)
     assert not (here / "l.json").exists()
 

@@ -24,7 +24,8 @@ from dataclasses import dataclass, field, fields, replace
 import numpy as np
 
 from panelflow.conditions.compressibility import KARMAN_TSIEN, RULES, check_mach
-from panelflow.conditions.fluids import UNITS, Fluid, make_fluid, user_fluid
+from panelflow.conditions.fluids import (STANDARD_SEA_LEVEL_TEMPERATURE, UNITS, Fluid, make_fluid,
+                                         user_fluid)
 from panelflow.errors import InputError
 from panelflow.flow.images import MAX_DISTANCE_CHORDS, Boundary
 from panelflow.geometry.outline import MAX_COORDINATE, Outline
@@ -42,6 +43,12 @@ MAX_PANELS_TOTAL = 8000
 MAX_ANGLES = 100_000
 MAX_PLANE_ANGLES = 2000
 MAX_ABS_ALPHA_DEG = 90.0
+# Air: ISO 2533's gas constant (J/(kg K)) and ratio of specific heats, for the speed of sound;
+# above INCOMPRESSIBLE_MACH the incompressible pressures err by more than about 5 % (the
+# Prandtl-Glauert factor 1/sqrt(1 - M^2) is 1.048 at 0.3; common practice)
+AIR_GAS_CONSTANT = 287.05287
+AIR_HEAT_RATIO = 1.4
+INCOMPRESSIBLE_MACH = 0.3
 # Ranges of the operating conditions (each refusal says why)
 MIN_MACH = 0.01
 MAX_TARGET_CL = 10.0
@@ -298,6 +305,23 @@ class OperatingPoint:
         n = 9.0 if self.critical_amplification is None else self.critical_amplification
         return Transition(_positive(n, "critical amplification factor"), **trips)
 
+    def _check_air_speed(self) -> None:
+        """Refuse an air speed whose Mach number the incompressible loads cannot carry."""
+        if self.fluid is None or self.fluid.name != "air":
+            return
+        t = STANDARD_SEA_LEVEL_TEMPERATURE if self.fluid.temperature_c is None else (
+            self.fluid.temperature_c + 273.15)
+        # speed of sound of an ideal gas with ISO 2533's gas constant and heat-capacity ratio
+        mach = self.speed / math.sqrt(AIR_HEAT_RATIO * AIR_GAS_CONSTANT * t)
+        if mach >= 1.0:
+            raise InputError(f"speed {self.speed:g} m/s in air is Mach {mach:.2f}: the flow is "
+                             "transonic or supersonic, outside this model")
+        if mach > INCOMPRESSIBLE_MACH and self.mach is None:
+            raise InputError(
+                f"speed {self.speed:g} m/s in air is Mach {mach:.2f}: above Mach "
+                f"{INCOMPRESSIBLE_MACH:g} the pressures need the compressibility correction; "
+                f"give --mach {mach:.2f} (case files: mach = {mach:.2f})")
+
     def _check_fluid(self) -> None:
         if self.fluid is not None and self.density is not None:
             raise InputError("give either a fluid or a density, not both")
@@ -324,6 +348,7 @@ class OperatingPoint:
                 _positive(self.speed, "speed"), 0.0, MAX_SPEED, "speed (m/s)",
                 "faster than sound in air, and far beyond cavitation in water: the flow is no "
                 "longer the incompressible one solved here"))
+            self._check_air_speed()
         if self.depth is not None:
             object.__setattr__(self, "depth", _within(
                 _positive(self.depth, "depth", allow_zero=True), 0.0, MAX_DEPTH, "depth (m)",
