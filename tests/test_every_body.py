@@ -53,7 +53,7 @@ def test_flap_peak_below_the_main_one_is_the_headline(slotted):
 
 
 def test_slot_peak_is_called_a_slot_peak(slotted):
-    note = next(n for n in slotted.notes if n.startswith("alpha 0:"))
+    note = next(n for n in slotted.notes if n.startswith("alpha 0: suction peak"))
     flap_name = slotted.outlines[1].name
     assert f"at the nose of {flap_name}, which the slot feeds" in note
     assert "slot peak" in note
@@ -63,7 +63,7 @@ def test_plain_flap_hinge_peak_is_named_as_such():
     foil = pf.load_outlines("naca2412")[0]
     r = pf.solve(pf.Problem(foil, pf.OperatingPoint(alpha_deg=(0.0,)), panels=N_PANELS,
                             flap=pf.Flap(0.75, 25.0)))
-    note = next(n for n in r.notes if n.startswith("alpha 0:"))
+    note = next(n for n in r.notes if n.startswith("alpha 0: suction peak"))
     assert "at the flap hinge" in note and "leading-edge separation" not in note
     # and the peak is where the note says: within 5 % of the chord of the hinge
     assert abs(r[0].bodies[0].x_cp_min - 0.75) < 0.05
