@@ -59,6 +59,10 @@ COLUMNS = {
     "cp_min": _C("lowest pressure coefficient", "", "the suction peak over every body"),
     "x_cp_min": _C("suction peak position", "x/c", "where the suction peak sits, along the "
                    "main body's chord line"),
+    "cp_min_error_estimate": _C("suction peak error estimate", "", "the main body's lowest "
+                                "Cp is within this of the exact inviscid value (panels, "
+                                "input points and smoothing; blank where it cannot be "
+                                "estimated)"),
     "cp_min_body": _C("body with the suction peak", "", "name of the body that carries the "
                       "suction peak"),
     "x_stagnation": _C("stagnation point", "x/c", "on the main body, along its chord line"),
@@ -87,6 +91,11 @@ COLUMNS = {
                         "corrected suction peak reaches sonic speed (Cp*)"),
     "inception_speed": _C("cavitation inception speed", "m/s", "freestream speed at which the "
                           "suction peak reaches the vapour pressure at the running depth"),
+    "inception_speed_low": _C("inception speed, low end", "m/s", "the inception speed with "
+                              "the suction peak at the deep end of its error estimate: the "
+                              "figure to design with"),
+    "inception_speed_high": _C("inception speed, high end", "m/s", "the inception speed with "
+                               "the suction peak at the shallow end of its error estimate"),
     "cavitation_number": _C("cavitation number", "", "(ambient plus hydrostatic pressure "
                             "minus vapour pressure) over the dynamic pressure"),
     "cavitation_margin": _C("cavitation margin", "", "cavitation number plus the lowest Cp: "

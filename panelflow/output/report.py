@@ -378,8 +378,9 @@ def compare_table(analyses, labels) -> str:
     for r in results:
         for name, values in margin_columns(r).items():
             margins.setdefault(name, [""] * n)
+            spec = ".1e" if name.endswith("_error_estimate") else ".5g"
             for i, v in enumerate(np.asarray(values, float)):
-                margins[name][row0 + i] = _num(float(v), ".5g")
+                margins[name][row0 + i] = _num(float(v), spec)
         row0 += len(r)
     cols = [TextColumn.of("section", case, left=True, words="case"),
             TextColumn.of("alpha_deg", alpha), TextColumn.of("cl", cl),
