@@ -209,7 +209,11 @@ def test_length_scale_from_chord():
     (dict(speed=5.0, span=0.0), "span must be positive, got 0"),
     (dict(speed=5.0, unit="yd"), "unknown length unit 'yd'"),
     (dict(speed=5.0, unit="mm", chord=0.2), "either the outline's unit or a chord"),
-    (dict(speed=5.0, static_pressure=-1.0), "static pressure must be a non-negative"),
+    (dict(speed=5.0, static_pressure=-1.0), "static pressure must be a positive"),
+    (dict(speed=5.0, static_pressure=0.0), "static pressure must be a positive"),  # a vacuum
+    # found by a user trial: accepted, with 300-digit loads
+    (dict(speed=5.0, static_pressure=1e300), "at most 1.1e+08 Pa"),
+    (dict(speed=5.0, span=1e300), "at most 1000 m"),
 ])
 def test_bad_conditions(kwargs, words):
     with pytest.raises(InputError) as exc:
@@ -219,7 +223,8 @@ def test_bad_conditions(kwargs, words):
 
 @pytest.mark.parametrize("density, words", [(0.0, "density must be positive, got 0"),
                                             (-1000.0, "density must be positive, got -1000"),
-                                            ("abc", "density must be a number")])
+                                            ("abc", "density must be a number"),
+                                            (1e300, "at most 20000")])
 def test_bad_density(density, words):
     with pytest.raises(InputError, match=words):
         user_fluid(density)

@@ -113,6 +113,16 @@ def test_trial_load_refusals(fluid, extra, fragment, here, capsys):
       "5000", "-o", "i.dat"), "5000 shape functions"),  # once ran for minutes
     (("inverse", str(FOIL), "--plateau=-0.6,0.05,0.4,0.8", "--surface", "upper", "--alpha",
       "2", "--functions", "0", "-o", "i.dat"), "0 shape functions"),  # once accepted
+    # the rest once exited 0 with a meaningless file or a result that was round-off
+    (("field", "naca0012", "--alpha", "2", "--window", "-1e300,1e300,-1,1", "-o", "f.csv"),
+     "body sizes from the bodies"),
+    (("section", "naca2412", "-o", "f.png"), "a coordinate table is written as"),
+    (("reshape", str(FOIL), "--thickness", "1e6", "-o", "i.dat"), "at most 0.4"),
+    (("reshape", str(FOIL), "--camber", "-0.5", "-o", "i.dat"), "at most 0.2 either way"),
+    (("loads", str(FOIL), "--alpha", "4", "--speed", "8", "--density", "1e300", "-o", "f.csv"),
+     "at most 20000"),
+    (("loads", str(FOIL), "--alpha", "4", "--speed", "8", "--fluid", "sea-water", "--span",
+      "1e300", "-o", "f.csv"), "at most 1000 m"),
 ])
 def test_trial_command_limits(argv, fragment, here, capsys):
     (here / "p.csv").write_text("x,y\n0.5,0.5\n")

@@ -51,6 +51,11 @@ SALINITY_RANGE = (0.0, 42.0)  # g/kg
 AIR_TEMPERATURE_RANGE = (-60.0, 60.0)  # degC, near the ground and on small craft
 ALTITUDE_RANGE = (-500.0, 20000.0)  # m
 
+# Ranges of what the user gives for loads (each refusal says why)
+MAX_LENGTH = 1000.0  # m, chord or span
+MAX_DENSITY = 20_000.0  # kg/m^3
+MAX_STATIC_PRESSURE = 1.1e8  # Pa, about 11 km under water
+
 # Metres per unit of length (exact by the definitions of the inch and foot, 1959).
 UNITS = {"m": 1.0, "cm": 0.01, "mm": 0.001, "in": 0.0254, "ft": 0.3048}
 
@@ -269,8 +274,11 @@ def get_fluid(name: str) -> Fluid:
 
 def user_fluid(density: float) -> Fluid:
     """A fluid known only by its density (kg/m³); no ambient or vapour pressure."""
-    return Fluid("user", _positive("density", density), None, None, None,
-                 "density given by the user")
+    rho = _positive("density", density)
+    if rho > MAX_DENSITY:
+        raise InputError(f"density {rho:g} kg/m^3: at most {MAX_DENSITY:g} (denser than any "
+                         "liquid a foil runs in; mercury is about 13 600)")
+    return Fluid("user", rho, None, None, None, "density given by the user")
 
 
 def resolve_fluid(name: str | None = None, density: float | None = None) -> Fluid:
@@ -326,11 +334,18 @@ class Conditions:
             raise InputError(f"unknown length unit {self.unit!r}; use one of {', '.join(UNITS)}")
         for key in ("chord", "span"):
             if getattr(self, key) is not None:
-                object.__setattr__(self, key, _positive(key, getattr(self, key)))
+                v = _positive(key, getattr(self, key))
+                if v > MAX_LENGTH:
+                    raise InputError(f"{key} {v:g} m: at most {MAX_LENGTH:g} m (a ship's rudder "
+                                     "or a turbine blade fits with room to spare)")
+                object.__setattr__(self, key, v)
         if self.static_pressure is not None:
             p = self.static_pressure
-            if not (isinstance(p, (int, float)) and math.isfinite(p) and p >= 0.0):
-                raise InputError(f"static pressure must be a non-negative number in Pa, got {p}")
+            if not (isinstance(p, (int, float)) and math.isfinite(p) and p > 0.0):
+                raise InputError(f"static pressure must be a positive number in Pa, got {p}")
+            if p > MAX_STATIC_PRESSURE:
+                raise InputError(f"static pressure {p:g} Pa: at most {MAX_STATIC_PRESSURE:g} Pa "
+                                 "(the pressure 10 km under water)")
             object.__setattr__(self, "static_pressure", float(p))
 
     @classmethod

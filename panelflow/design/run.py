@@ -25,11 +25,12 @@ from panelflow.design.report import (DESIGN_CAUTION, before_after_rows, before_a
 from panelflow.design.spec import TABLE_FORMATS, DesignCase
 from panelflow.errors import OutputError
 from panelflow.files import check_outputs, refuse_inputs
+from panelflow.geometry.readers import TABLE_EXTENSIONS
 
 __all__ = ["SECTION_FORMATS", "OptimisationRun", "InverseRun", "run_optimisation",
            "run_inverse", "check_section_path"]
 
-SECTION_FORMATS = {".dat": None, ".txt": None, ".xy": None}
+SECTION_FORMATS = {e: None for e in TABLE_EXTENSIONS}
 MANIFEST_NAME = "manifest.json"
 MANIFEST_FORMAT = "panelflow design manifest"
 

@@ -34,6 +34,8 @@ from panelflow.flow.solver import System
 # tests/test_field.py).
 NEAR = 1.0
 # Largest grid: 25 million points take about 1.5 GB for the results of one angle.
+# Farthest field point, in body sizes from the bodies (see _check_reach)
+MAX_REACH = 1e6
 MAX_GRID_POINTS = 25_000_000
 # Largest field in point-panel pairs: about 40 ns each on one core (measured, near-surface layer
 # and masking included), so a field at the limit takes a minute or two, not an afternoon.
@@ -329,6 +331,7 @@ def flow_field(source, points, alpha_deg, shape=None, progress=None) -> FlowFiel
                          "of one angle at a time")
     system = next(iter(systems.values()))
     check_field_size(len(pts), system.panels.n_panels)
+    _check_reach(pts, system.panels)
     a = np.radians(alpha)
     ca, sa = np.cos(a)[:, None], np.sin(a)[:, None]
     n = len(pts)
@@ -344,6 +347,26 @@ def flow_field(source, points, alpha_deg, shape=None, progress=None) -> FlowFiel
             if progress is not None:
                 progress(len(pts[sl]))
     return FlowField(pts, alpha, u, v, cp, inside, tuple(shape) if shape else (len(pts),))
+
+
+def _check_reach(pts: np.ndarray, panels) -> None:
+    """Refuse points so far away that round-off, not the flow, sets their value.
+
+    The induced velocity there is the difference of nearly equal logarithms and angles: at 1e9
+    body sizes its error reached 6e-6 in Cp and at 1e12 2.6e-2 (measured), while the flow there
+    is the freestream to 1e-12.
+    """
+    nodes = panels.nodes[:, 0] + 1j * panels.nodes[:, 1]
+    centre = 0.5 * (nodes.real.min() + nodes.real.max()) + 0.5j * (nodes.imag.min()
+                                                                  + nodes.imag.max())
+    size = max(np.ptp(nodes.real), np.ptp(nodes.imag))
+    if not np.all(np.isfinite(pts)):
+        raise InputError("field points must be finite numbers")
+    far = np.abs(pts - centre).max() if len(pts) else 0.0
+    if far > MAX_REACH * size:
+        raise InputError(f"a field point lies {far / size:.3g} body sizes from the bodies: at "
+                         f"most {MAX_REACH:g} (farther out the flow is the freestream to "
+                         "round-off, and round-off is all this would compute)")
 
 
 def _as_points(points) -> np.ndarray:

@@ -49,6 +49,7 @@ from panelflow.errors import GeometryError, InputError
 from panelflow.geometry.measure import (SectionMeasures, SectionShape, _theta_of, decompose,
                                         measure, measure_shape, trailing_edge_kind)
 from panelflow.geometry.outline import BLUNT, SHARP, SMOOTH, Outline
+from panelflow.geometry.sections import MAX_THICKNESS
 
 __all__ = ["Thickness", "Camber", "ThicknessPosition", "CamberPosition",
            "TrailingEdgeThickness", "LeadingEdgeRadius", "Blend", "EditResult", "reshape",
@@ -56,6 +57,8 @@ __all__ = ["Thickness", "Camber", "ThicknessPosition", "CamberPosition",
 
 _MIN_REMAP_SLOPE = 0.05  # a remap flatter than this somewhere squeezes the shape into a kink
 _POSITION_RANGE = (0.05, 0.95)
+# Largest camber an edit may give, in chords (NACA families go to 0.09; common practice)
+MAX_CAMBER = 0.2
 
 
 def _number(value, what: str, positive: bool = False, allow_zero: bool = True) -> float:
@@ -153,6 +156,9 @@ class Thickness:
             k = _number(self.scale, "thickness scale", positive=True, allow_zero=False)
         else:
             k = _number(self.value, "thickness", positive=True, allow_zero=False) / now
+        if k * now > MAX_THICKNESS:
+            raise InputError(f"thickness {k * now:.4g} chords: at most {MAX_THICKNESS:g} (beyond, "
+                             "the two surfaces no longer make a foil)")
         new = shape.replaced(half_thickness=k * shape.half_thickness)
         return new, f"thickness scaled by {k:.6g} ({now:.5g} -> {k * now:.5g} chords)"
 
@@ -174,6 +180,9 @@ class Camber:
                 raise InputError("camber: the section is symmetric, so there is no camber line "
                                  "to scale to a value")
             k = _number(self.value, "camber") / now
+        if abs(k * now) > MAX_CAMBER:
+            raise InputError(f"camber {k * now:.4g} chords: at most {MAX_CAMBER:g} either way "
+                             "(a mean line that bent is no longer a foil section)")
         new = shape.replaced(camber=k * shape.camber)
         return new, f"camber scaled by {k:.6g} ({now:.5g} -> {k * now:.5g} chords)"
 

@@ -78,7 +78,7 @@ from typing import Callable
 
 import numpy as np
 
-from panelflow.errors import GeometryError, InputError
+from panelflow.errors import GeometryError, InputError, OutputError
 from panelflow.geometry.outline import MAX_COORDINATE, Outline
 from panelflow.geometry.specs import SPEC_HELP, parse_spec
 from panelflow.files import atomic_write_text, check_input, read_input
@@ -106,6 +106,8 @@ _COLUMN_LABEL = re.compile(r"[(\[]?[xy]([^a-z].*)?", re.IGNORECASE)
 # Points of one body read from a file: checking the points costs about 60 microseconds each,
 # so this keeps a file's checks within seconds
 MAX_OUTLINE_POINTS = 100_000
+# Extensions a coordinate table is written under (all the same text layout)
+TABLE_EXTENSIONS = (".csv", ".dat", ".txt", ".xy")
 _BINARY_PROBE = 8192  # bytes looked at for NUL bytes; text tables never hold one
 
 
@@ -753,4 +755,9 @@ def write_outline_table(outline, path, overwrite: bool = False) -> Path:
     OutputError
         The file exists (and ``overwrite`` is False), or the folder is missing or not writable.
     """
-    return atomic_write_text(Path(path), outline_table_text(outline), overwrite=overwrite)
+    path = Path(path)
+    if path.suffix.lower() not in TABLE_EXTENSIONS:
+        raise OutputError(f"{path}: a coordinate table is written as "
+                          f"{', '.join(TABLE_EXTENSIONS)} (the layout is text; another "
+                          "extension would mislabel it)")
+    return atomic_write_text(path, outline_table_text(outline), overwrite=overwrite)
