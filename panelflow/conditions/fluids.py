@@ -36,6 +36,7 @@ import functools
 import math
 from dataclasses import dataclass
 
+from panelflow.conditions.viscosity import in_range as _in_range
 from panelflow.errors import InputError
 
 # ISO 2533:1975 sea-level values; the ambient pressure of every preset at sea level.
@@ -95,17 +96,6 @@ def water_density_teos10(temperature_c: float, salinity: float = 0.0) -> float:
             from None
     ct = gsw.CT_from_t(sa, t, 0.0)  # sea pressure 0 dbar: at the surface
     return float(gsw.rho(sa, ct, 0.0))
-
-
-def _in_range(name: str, value, lo: float, hi: float, unit: str) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a number, got {value!r}") from None
-    if not (math.isfinite(v) and lo <= v <= hi):
-        raise InputError(f"{name} {v:g} {unit} is outside {lo:g} to {hi:g} {unit}, the range "
-                         "of the standard's formulas used here")
-    return v
 
 
 def _positive(option: str, value) -> float:

@@ -35,14 +35,15 @@ SUTHERLAND_BETA = 1.458e-6  # kg/(m s K^0.5)
 SUTHERLAND_S = 110.4  # K
 
 
-def _in_range(name: str, value, lo: float, hi: float, unit: str) -> float:
+def in_range(name: str, value, lo: float, hi: float, unit: str) -> float:
+    """``value`` as a float, or one line saying it is outside the range of the formula used."""
     try:
         v = float(value)
     except (TypeError, ValueError):
         raise InputError(f"{name} must be a number, got {value!r}") from None
     if not (math.isfinite(v) and lo <= v <= hi):
-        raise InputError(f"{name} {v:g} {unit} is outside {lo:g}-{hi:g} {unit}, the range of "
-                         "the property correlation")
+        raise InputError(f"{name} {v:g} {unit} is outside {lo:g} to {hi:g} {unit}, the range "
+                         "of the published formula used here")
     return v
 
 
@@ -56,8 +57,8 @@ def water_density(temperature_c: float, salinity: float = 0.0) -> float:
     salinity : float
         Absolute salinity, g/kg (0 fresh water, about 35 the open sea), 0-120.
     """
-    t = _in_range("water temperature", temperature_c, 0.0, 100.0, "°C")
-    s = _in_range("salinity", salinity, 0.0, 120.0, "g/kg") / 1000.0  # kg/kg
+    t = in_range("water temperature", temperature_c, 0.0, 100.0, "°C")
+    s = in_range("salinity", salinity, 0.0, 120.0, "g/kg") / 1000.0  # kg/kg
     rho_w = (9.999e2 + 2.034e-2 * t - 6.162e-3 * t * t + 2.261e-5 * t**3 - 4.657e-8 * t**4)
     return rho_w + s * (8.020e2 - 2.001 * t + 1.677e-2 * t * t - 3.060e-5 * t**3
                         - 1.613e-5 * s * t * t)
@@ -65,8 +66,8 @@ def water_density(temperature_c: float, salinity: float = 0.0) -> float:
 
 def water_dynamic_viscosity(temperature_c: float, salinity: float = 0.0) -> float:
     """Dynamic viscosity of pure or sea water at atmospheric pressure, Pa s."""
-    t = _in_range("water temperature", temperature_c, 0.0, 100.0, "°C")
-    s = _in_range("salinity", salinity, 0.0, 120.0, "g/kg") / 1000.0
+    t = in_range("water temperature", temperature_c, 0.0, 100.0, "°C")
+    s = in_range("salinity", salinity, 0.0, 120.0, "g/kg") / 1000.0
     mu_w = 4.2844e-5 + 1.0 / (0.157 * (t + 64.993) ** 2 - 91.296)
     a = 1.541 + 1.998e-2 * t - 9.52e-5 * t * t
     b = 7.974 - 7.561e-2 * t + 4.724e-4 * t * t
@@ -88,7 +89,7 @@ def standard_atmosphere(altitude_m: float = 0.0) -> dict:
         ``temperature`` (K), ``pressure`` (Pa), ``density`` (kg/m³), ``dynamic_viscosity``
         (Pa s), ``kinematic_viscosity`` (m²/s).
     """
-    h = _in_range("altitude", altitude_m, -500.0, STRATOSPHERE_TOP, "m")
+    h = in_range("altitude", altitude_m, -500.0, STRATOSPHERE_TOP, "m")
     exponent = GRAVITY / (GAS_CONSTANT_AIR * LAPSE_RATE)
     if h <= TROPOPAUSE:
         t = SEA_LEVEL_TEMPERATURE - LAPSE_RATE * h
@@ -105,7 +106,7 @@ def standard_atmosphere(altitude_m: float = 0.0) -> dict:
 
 def air_dynamic_viscosity(temperature_k: float) -> float:
     """Sutherland's law as the standard atmosphere defines it, Pa s (150-500 K)."""
-    t = _in_range("air temperature", temperature_k, 150.0, 500.0, "K")
+    t = in_range("air temperature", temperature_k, 150.0, 500.0, "K")
     return SUTHERLAND_BETA * t**1.5 / (t + SUTHERLAND_S)
 
 
