@@ -56,8 +56,14 @@ def _build_boundary_layer_figure(result, alpha_deg=None, title=None):
         raise InputError(f"alpha {r.alpha_deg:g} deg: the viscous iteration did not converge; "
                          "there is no boundary layer to draw")
     body = result[i].bodies[0]
-    heights = (2.9, 1.5, 1.3, 0.7)  # Cp, skin friction, shape factor, section
     gaps, top, bottom = 0.12, 0.55, 0.55
+    # the section strip as tall as the section drawn to scale across the plot's width (the
+    # x-axis is shared, so an equal aspect cannot be had by widening the limits)
+    poly = np.vstack([result.outlines[0].polygon, result.outlines[0].polygon[:1]])
+    ps, pn = _chord_frame(result.fine.chord_line, poly[:, 0], poly[:, 1])
+    span_s = float(np.ptp(ps)) * 1.1  # the plot's x-range is the chord with a margin
+    strip = (_W - _LEFT - _RIGHT) * (float(np.ptp(pn)) * 1.3) / max(span_s, 1e-9)
+    heights = (2.9, 1.5, 1.3, min(max(strip, 0.4), 2.0))  # Cp, skin friction, shape factor, section
     note = _note_lines(VISCOUS_CAUTION, _W - _LEFT - _RIGHT, FONT["note"])
     note_h = 0.12 + 0.13 * len(note)
     H = top + sum(heights) + gaps * (len(heights) - 1) + bottom + note_h
@@ -106,8 +112,6 @@ def _build_boundary_layer_figure(result, alpha_deg=None, title=None):
         ax.yaxis.set_label_coords(-0.06, 0.5)
         if ax is not ax_sec:
             ax.tick_params(labelbottom=False)
-    poly = np.vstack([result.outlines[0].polygon, result.outlines[0].polygon[:1]])
-    ps, pn = _chord_frame(result.fine.chord_line, poly[:, 0], poly[:, 1])
     ax_sec.fill(ps, pn, facecolor=SECTION_FILL, edgecolor=INK, linewidth=LINE["outline"])
     ax_sec.set_aspect("equal", adjustable="datalim")
     ax_sec.grid(False)
