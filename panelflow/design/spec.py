@@ -55,7 +55,6 @@ from __future__ import annotations
 import difflib
 import hashlib
 import os
-import tomllib
 from dataclasses import dataclass
 from pathlib import Path
 
@@ -66,13 +65,12 @@ from panelflow.design.job import (Cavitation, InceptionSpeed, Job, LeastDrag, Li
                                   MomentLimit, WidestRange)
 from panelflow.errors import InputError, PanelflowError
 from panelflow.files import read_input
-from panelflow.study.cases import KeyLines, _Checker, _kind
+from panelflow.study.cases import MAX_CASE_BYTES, _Checker, _kind, case_head
 from panelflow.study.runner import file_sha256
 
 __all__ = ["DesignCase", "load_design_case", "parse_design_case", "DESIGN_KEYS",
            "OBJECTIVE_KINDS"]
 
-MAX_CASE_BYTES = 2**20
 OBJECTIVE_KINDS = ("inception-speed", "widest-range", "least-drag")
 TABLE_FORMATS = (".csv", ".json")
 DESIGN_KEYS = {
@@ -397,22 +395,7 @@ def parse_design_case(text: str, path) -> DesignCase:
 
     p = Path(path)
     name = p.name
-    if len(text) > MAX_CASE_BYTES:
-        raise InputError(f"{name}: {len(text)} characters, more than a case file may have")
-    text = text.removeprefix("\ufeff")
-    try:
-        doc = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{name}: not valid TOML: {exc}") from None
-    ck = _DesignChecker(name, KeyLines(text))
-    ck.keys(doc, "top", ())
-    base = p.parent if str(p.parent) else Path(".")
-    title = ck.text(doc["title"], ("title",)) if "title" in doc else p.stem
-    if "output" in doc:
-        out = ck.text(doc["output"], ("output",))
-        output = Path(out) if os.path.isabs(out) else base / out
-    else:
-        output = base / f"{p.stem}_results"
+    doc, ck, base, title, output = case_head(text, path, _DesignChecker)
     if "section" not in doc:
         raise ck.error((), "no [section] table: give the start section's file or spec")
     sec = ck.table(doc["section"], ("section",))

@@ -976,6 +976,46 @@ def _outputs(ck: _Checker, doc: dict, labels, fluid, density, speed, unit=None, 
     return Outputs(tables, polar_figs, cp_figs, tuple(fields_), tuple(loads))
 
 
+def case_head(text: str, path, checker=None):
+    """The parts every case file shares: its TOML document (size, byte-order mark, nesting
+    checked), a checker of its keys, the folder of relative paths, its title and output folder.
+
+    Parameters
+    ----------
+    text : str
+    path : str or Path
+    checker : type, optional
+        The :class:`_Checker` (sub)class whose key table applies (default the study's).
+
+    Returns
+    -------
+    (doc, checker, base, title, output)
+    """
+    p = Path(path)
+    name = p.name
+    if len(text) > MAX_CASE_BYTES:
+        raise InputError(f"{name}: {len(text)} characters, more than a case file may have "
+                         f"({MAX_CASE_BYTES})")
+    text = text.removeprefix("\ufeff")
+    try:
+        doc = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"{name}: not valid TOML: {exc}") from None
+    except (RecursionError, MemoryError):
+        raise InputError(f"{name}: arrays or tables nested too deeply to be a case file") \
+            from None
+    ck = (checker or _Checker)(name, KeyLines(text))
+    ck.keys(doc, "top", ())
+    base = p.parent if str(p.parent) else Path(".")
+    title = ck.text(doc["title"], ("title",)) if "title" in doc else p.stem
+    if "output" in doc:
+        out = ck.text(doc["output"], ("output",))
+        output = Path(out) if os.path.isabs(out) else base / out
+    else:
+        output = base / f"{p.stem}_results"
+    return doc, ck, base, title, output
+
+
 def parse_case(text: str, path) -> Case:
     """Check a case file's text and resolve it (see the module docstring for the schema).
 
@@ -997,27 +1037,7 @@ def parse_case(text: str, path) -> Case:
         one), a missing or wrong value (with its line and key), a missing file.
     """
     p = Path(path)
-    name = p.name
-    if len(text) > MAX_CASE_BYTES:
-        raise InputError(f"{name}: {len(text)} characters, more than a case file may have "
-                         f"({MAX_CASE_BYTES})")
-    text = text.removeprefix("\ufeff")
-    try:
-        doc = tomllib.loads(text)
-    except tomllib.TOMLDecodeError as exc:
-        raise InputError(f"{name}: not valid TOML: {exc}") from None
-    except (RecursionError, MemoryError):
-        raise InputError(f"{name}: arrays or tables nested too deeply to be a case file") \
-            from None
-    ck = _Checker(name, KeyLines(text))
-    ck.keys(doc, "top", ())
-    base = p.parent if str(p.parent) else Path(".")
-    title = ck.text(doc["title"], ("title",)) if "title" in doc else p.stem
-    if "output" in doc:
-        out = ck.text(doc["output"], ("output",))
-        output = Path(out) if os.path.isabs(out) else base / out
-    else:
-        output = base / f"{p.stem}_results"
+    doc, ck, base, title, output = case_head(text, path, _Checker)
     settings, record, fluid, density, speed, unit, chord = _conditions(ck, doc)
     sections = _sections(ck, doc, base, settings)
     tasks = tuple(t for t, _ in sections)
