@@ -444,13 +444,24 @@ def alpha_for_cl(outlines, target_cl: float, n_panels: int | None = DEFAULT_PANE
     chord, quarter = _reference(outlines, chord_line)
     _, system = build(outlines, n_panels)
     unit = evaluate(system, [0.0, 90.0], chord, quarter).cl
-    a, b = float(unit[0]), float(unit[1])
-    amp = np.hypot(a, b)
+    return angle_for_lift(float(unit[0]), float(unit[1]), target_cl)
+
+
+def angle_for_lift(cl_0: float, cl_90: float, target_cl: float) -> float:
+    """The angle (degrees) where ``cl_0 cos(alpha) + cl_90 sin(alpha)`` is ``target_cl``: the
+    circulation lift from the lifts at 0 and 90 degrees; of the two roots the one nearer zero.
+
+    Raises
+    ------
+    InputError
+        When no angle gives that lift.
+    """
+    amp = np.hypot(cl_0, cl_90)
     if amp < 1e-12 or abs(target_cl) > amp:
         raise InputError(f"no angle of attack gives cl = {target_cl:g} (largest |cl| is "
                          f"{amp:.4g}; a body without a trailing edge carries no lift)")
     # a cos x + b sin x = amp sin(x + phi)
-    phi = np.arctan2(a, b)
+    phi = np.arctan2(cl_0, cl_90)
     base = np.arcsin(target_cl / amp)
     roots = np.array([base - phi, np.pi - base - phi])
     roots = (roots + np.pi) % (2.0 * np.pi) - np.pi

@@ -20,9 +20,10 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from panelflow import threads
+from panelflow.analysis.inviscid import angle_for_lift
 from panelflow.design.sensitivity import unit_derivatives
 from panelflow.design.shape import SectionForm
-from panelflow.errors import GeometryError, InputError
+from panelflow.errors import GeometryError
 from panelflow.flow.solver import factorise
 from panelflow.geometry.measure import ChordFrame
 from panelflow.geometry.outline import BLUNT, Outline
@@ -124,16 +125,7 @@ class State:
     def alpha_for_cl(self, target: float) -> float:
         """Angle (degrees from the chord) where the circulation lift is ``target``; closed
         form as in the analysis (the root nearer zero)."""
-        a, b = self.cl(0.0), self.cl(90.0)
-        amp = np.hypot(a, b)
-        if amp < 1e-12 or abs(target) > amp:
-            raise InputError(f"no angle of attack gives cl = {target:g} (largest |cl| "
-                             f"{amp:.4g})")
-        phi = np.arctan2(a, b)
-        base = np.arcsin(target / amp)
-        roots = np.array([base - phi, np.pi - base - phi])
-        roots = (roots + np.pi) % (2.0 * np.pi) - np.pi
-        return float(np.degrees(roots[np.argmin(np.abs(roots))]))
+        return angle_for_lift(self.cl(0.0), self.cl(90.0), target)
 
     def alpha_for_cl_derivative(self, alpha_deg: float) -> np.ndarray:
         """d alpha / dc (degrees) keeping the lift at its value at ``alpha_deg``."""
